@@ -1,0 +1,145 @@
+import { betterAuth } from 'better-auth'
+import { drizzleAdapter } from 'better-auth/adapters/drizzle'
+import { APIError, createAuthMiddleware } from 'better-auth/api'
+import { eq, sql } from 'drizzle-orm'
+import { db } from '#app/.server/db/client.ts'
+import { accounts, sessions, users, verifications } from '#app/.server/db/schema/auth.ts'
+import { env } from '#app/.server/env.ts'
+import { recordAudit } from '#app/.server/services/audit.ts'
+import { decideSignInGate, lockUntilAfterFailure } from '#shared/authz/sign-in-gate.ts'
+
+const DEVELOPMENT_SECRET = 'bandproof-development-secret-not-for-production-use'
+
+function createAuth() {
+	const settings = env()
+	const secret = settings.BETTER_AUTH_SECRET ?? DEVELOPMENT_SECRET
+	if (settings.NODE_ENV === 'production' && secret === DEVELOPMENT_SECRET && !process.env.BANDPROOF_DEMO) {
+		throw new Error('Set BETTER_AUTH_SECRET (32 characters or more) before running in production')
+	}
+	return betterAuth({
+		secret,
+		baseURL: settings.BETTER_AUTH_URL,
+		trustedOrigins: loopbackTwins(settings.BETTER_AUTH_URL),
+		database: drizzleAdapter(db, {
+			provider: 'pg',
+			schema: { user: users, session: sessions, account: accounts, verification: verifications },
+		}),
+		emailAndPassword: {
+			enabled: true,
+			// Accounts are created by an administrator, never by self-service (21 CFR 11.10(d): limited access).
+			disableSignUp: true,
+			minPasswordLength: 10,
+		},
+		session: {
+			// Idle expiry: a session lasts SESSION_IDLE_MINUTES after its last refresh; activity refreshes it.
+			expiresIn: settings.SESSION_IDLE_MINUTES * 60,
+			updateAge: 60,
+			cookieCache: { enabled: false },
+		},
+		advanced: { cookiePrefix: 'bandproof' },
+		rateLimit: { enabled: false },
+		logger: { disabled: settings.NODE_ENV === 'test' },
+		hooks: {
+			before: createAuthMiddleware(async (ctx) => {
+				if (ctx.path !== '/sign-in/email') return
+				const email = String((ctx.body as { email?: unknown } | undefined)?.email ?? '').toLowerCase()
+				const [user] = await db.select().from(users).where(eq(users.email, email))
+				const now = new Date()
+				if (user?.lockedUntil && user.lockedUntil <= now) {
+					// A lock that has run out starts the count afresh.
+					await db.update(users).set({ failedSignIns: 0, lockedUntil: null }).where(eq(users.id, user.id))
+				}
+				const gate = decideSignInGate(user ?? null, now)
+				if (!gate.ok) {
+					await recordAudit(db, {
+						actor: { id: user?.id ?? null, label: email },
+						action: 'user.sign-in-refused',
+						entityType: 'user',
+						entityId: user?.id ?? null,
+						reason: gate.error,
+						ipAddress: ctx.headers?.get('x-forwarded-for') ?? null,
+					})
+					throw new APIError('FORBIDDEN', { message: gate.error, code: 'ACCOUNT_BLOCKED' })
+				}
+			}),
+			after: createAuthMiddleware(async (ctx) => {
+				if (ctx.path !== '/sign-in/email') return
+				const email = String((ctx.body as { email?: unknown } | undefined)?.email ?? '').toLowerCase()
+				const ipAddress = ctx.headers?.get('x-forwarded-for') ?? null
+				const newSession = ctx.context.newSession
+				if (newSession) {
+					await db.update(users).set({ failedSignIns: 0, lockedUntil: null }).where(eq(users.id, newSession.user.id))
+					await recordAudit(db, {
+						actor: { id: newSession.user.id, label: newSession.user.email },
+						action: 'user.signed-in',
+						entityType: 'user',
+						entityId: newSession.user.id,
+						ipAddress,
+					})
+					return
+				}
+				const returned = ctx.context.returned
+				const refusedByGate = returned instanceof APIError && returned.body?.code === 'ACCOUNT_BLOCKED'
+				if (refusedByGate) return
+				await recordFailedSignIn(email, ipAddress)
+			}),
+		},
+	})
+}
+
+/** Counts a failed password against the account and locks it at the threshold. */
+async function recordFailedSignIn(email: string, ipAddress: string | null): Promise<void> {
+	const settings = env()
+	await db.transaction(async (tx) => {
+		const [user] = await tx
+			.update(users)
+			.set({ failedSignIns: sql`${users.failedSignIns} + 1` })
+			.where(eq(users.email, email))
+			.returning()
+		let lockedUntil: Date | null = null
+		if (user) {
+			lockedUntil = lockUntilAfterFailure(user.failedSignIns, new Date(), {
+				threshold: settings.LOCKOUT_THRESHOLD,
+				minutes: settings.LOCKOUT_MINUTES,
+			})
+			if (lockedUntil) await tx.update(users).set({ lockedUntil }).where(eq(users.id, user.id))
+		}
+		await recordAudit(tx, {
+			actor: { id: user?.id ?? null, label: email },
+			action: 'user.sign-in-failed',
+			entityType: 'user',
+			entityId: user?.id ?? null,
+			after: user ? { failedSignIns: user.failedSignIns, lockedUntil: lockedUntil?.toISOString() ?? null } : null,
+			ipAddress,
+		})
+		if (user && lockedUntil) {
+			await recordAudit(tx, {
+				actor: { id: null, label: 'system' },
+				action: 'user.locked',
+				entityType: 'user',
+				entityId: user.id,
+				after: { lockedUntil: lockedUntil.toISOString() },
+				reason: `${user.failedSignIns} consecutive failed sign-ins`,
+			})
+		}
+	})
+}
+
+/** The public origin, plus its localhost/127.0.0.1 twin: browsers treat the two as different origins. */
+function loopbackTwins(publicUrl: string | undefined): Array<string> {
+	if (!publicUrl) return []
+	const url = new URL(publicUrl)
+	const origins = [url.origin]
+	const twin = url.hostname === 'localhost' ? '127.0.0.1' : url.hostname === '127.0.0.1' ? 'localhost' : null
+	if (twin) origins.push(`${url.protocol}//${twin}${url.port ? `:${url.port}` : ''}`)
+	return origins
+}
+
+type Auth = ReturnType<typeof createAuth>
+let instance: Auth | null = null
+
+/** The better-auth instance, created on first use (after the environment is known). */
+export function auth(): Auth {
+	instance ??= createAuth()
+	return instance
+}

@@ -1,0 +1,32 @@
+import { type RouteConfig, index, layout, prefix, route } from '@react-router/dev/routes'
+
+// THE url map. Every signed-in page hangs under the _app layout, whose middleware resolves the session;
+// each loader and action then authorises its own permission.
+export default [
+	route('sign-in', 'routes/_public/sign-in.tsx'),
+	route('sign-out', 'routes/_public/sign-out.tsx'),
+	route('api/auth/*', 'routes/api/auth.$.ts'),
+	route('healthz', 'routes/api/healthz.ts'),
+
+	layout('routes/_app/layout.tsx', [
+		index('routes/_app/overview.tsx'),
+		...prefix('materials', [
+			index('routes/materials/index.tsx'),
+			route('new', 'routes/materials/new.tsx'),
+			route(':materialId', 'routes/materials/$materialId.tsx'),
+		]),
+		route('spectra', 'routes/_app/area-placeholder.tsx', { id: 'area-spectra' }),
+		route('specifications', 'routes/_app/area-placeholder.tsx', { id: 'area-specifications' }),
+		route('queue', 'routes/_app/area-placeholder.tsx', { id: 'area-queue' }),
+		route('inspection', 'routes/_app/area-placeholder.tsx', { id: 'area-inspection' }),
+		route('audit', 'routes/audit/index.tsx'),
+		...prefix('admin', [
+			route('users', 'routes/admin/users.tsx'),
+			route('users/new', 'routes/admin/users.new.tsx'),
+			route('users/:userId', 'routes/admin/users.$userId.tsx'),
+			route('mailbox', 'routes/_app/area-placeholder.tsx', { id: 'area-mailbox' }),
+		]),
+	]),
+
+	route('*', 'routes/not-found.tsx'),
+] satisfies RouteConfig

@@ -1,0 +1,129 @@
+import { Form, NavLink, Outlet } from 'react-router'
+import type { Route } from './+types/layout'
+import { actorContext, authorize, requireSignedIn } from '#app/.server/context.ts'
+import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
+import { cn } from '#app/utils/misc.ts'
+import { type Actor, can, type Permission, ROLE_LABELS } from '#shared/authz/permissions.ts'
+
+export const middleware: Array<Route.MiddlewareFunction> = [
+	async ({ request, context }, next) => {
+		await requireSignedIn(request, context)
+		return next()
+	},
+]
+
+export function loader({ context }: Route.LoaderArgs) {
+	const actor = authorize(context, 'workspace:enter')
+	return { actor: context.get(actorContext) ?? actor }
+}
+
+type NavItem = { to: string; label: string; permission: Permission; end?: boolean }
+type NavGroup = { heading: string | null; items: Array<NavItem> }
+
+const NAVIGATION: Array<NavGroup> = [
+	{ heading: null, items: [{ to: '/', label: 'Overview', permission: 'workspace:enter', end: true }] },
+	{
+		heading: 'Library',
+		items: [
+			{ to: '/materials', label: 'Materials', permission: 'material:read' },
+			{ to: '/spectra', label: 'Spectra', permission: 'material:read' },
+			{ to: '/specifications', label: 'Specifications', permission: 'spec:edit' },
+		],
+	},
+	{
+		heading: 'Work',
+		items: [
+			{ to: '/queue', label: 'My queue', permission: 'queue:read' },
+			{ to: '/audit', label: 'Audit trail', permission: 'audit:read' },
+			{ to: '/inspection', label: 'Inspection', permission: 'inspection:read' },
+		],
+	},
+	{
+		heading: 'Administration',
+		items: [
+			{ to: '/admin/users', label: 'Users and roles', permission: 'user:manage' },
+			{ to: '/admin/mailbox', label: 'Outgoing mail', permission: 'mailbox:read' },
+		],
+	},
+]
+
+function visibleNavigation(actor: Actor): Array<NavGroup> {
+	return NAVIGATION.map((group) => ({ ...group, items: group.items.filter((item) => can(actor, item.permission)) })).filter(
+		(group) => group.items.length > 0,
+	)
+}
+
+export default function SignedInLayout({ loaderData }: Route.ComponentProps) {
+	const { actor } = loaderData
+	return (
+		<div className="flex min-h-screen">
+			<a href="#main" className="bg-accent text-paper sr-only z-50 rounded px-3 py-2 focus:not-sr-only focus:fixed focus:top-2 focus:left-2">
+				Skip to content
+			</a>
+			<aside className="border-rule bg-sheet flex w-60 shrink-0 flex-col border-r">
+				<div className="border-rule flex items-center gap-2 border-b px-5 py-4">
+					<img src="/favicon.svg" alt="" className="h-7 w-7" />
+					<span className="font-serif text-lg font-bold">Bandproof</span>
+				</div>
+				<nav aria-label="Main" className="flex-1 space-y-5 px-3 py-4">
+					{visibleNavigation(actor).map((group) => (
+						<div key={group.heading ?? 'top'}>
+							{group.heading ? (
+								<p className="text-ink-faint mb-1 px-2 text-xs font-semibold tracking-wider uppercase">{group.heading}</p>
+							) : null}
+							<ul className="space-y-0.5">
+								{group.items.map((item) => (
+									<li key={item.to}>
+										<NavLink
+											to={item.to}
+											end={item.end}
+											className={({ isActive }) =>
+												cn(
+													'block rounded-md px-2 py-1.5 text-sm',
+													isActive ? 'bg-accent-soft text-accent-strong font-semibold' : 'text-ink-soft hover:bg-paper hover:text-ink',
+												)
+											}
+										>
+											{item.label}
+										</NavLink>
+									</li>
+								))}
+							</ul>
+						</div>
+					))}
+				</nav>
+				<UserPanel actor={actor} />
+			</aside>
+			<main id="main" className="min-w-0 flex-1 px-8 py-6">
+				<Outlet />
+			</main>
+		</div>
+	)
+}
+
+function UserPanel({ actor }: { actor: Actor }) {
+	return (
+		<section aria-label="Signed-in user" className="border-rule border-t px-5 py-4">
+			<p className="text-sm font-semibold" data-testid="user-name">
+				{actor.name}
+			</p>
+			<p className="text-ink-faint truncate text-xs">{actor.email}</p>
+			<ul aria-label="Your roles" className="mt-2 flex flex-wrap gap-1">
+				{actor.roles.map((role) => (
+					<li key={role} className="bg-accent-soft text-accent-strong rounded px-1.5 py-0.5 text-xs">
+						{ROLE_LABELS[role]}
+					</li>
+				))}
+			</ul>
+			<Form method="post" action="/sign-out" className="mt-3">
+				<button type="submit" className="text-accent text-sm font-medium underline-offset-4 hover:underline">
+					Sign out
+				</button>
+			</Form>
+		</section>
+	)
+}
+
+export function ErrorBoundary() {
+	return <GeneralErrorBoundary />
+}

@@ -1,0 +1,54 @@
+/**
+ * Who may do what. Pure and shared: the server enforces it (app/.server/context.ts is the only place that
+ * answers 403) and the UI uses the same map to decide what to show.
+ */
+export const ROLES = ['author', 'reviewer', 'approver', 'inspector', 'admin'] as const
+export type Role = (typeof ROLES)[number]
+
+export const ROLE_LABELS: Record<Role, string> = {
+	author: 'Author',
+	reviewer: 'Reviewer',
+	approver: 'Approver',
+	inspector: 'Inspector',
+	admin: 'Administrator',
+}
+
+export const ROLE_DUTIES: Record<Role, string> = {
+	author: 'Drafts specifications, uploads spectra, builds band tables',
+	reviewer: 'Redlines drafts and signs them as reviewed',
+	approver: 'Signs approval and sets the effective date',
+	inspector: 'Reads effective and historical records during an access grant',
+	admin: 'Manages users, roles, grants, templates and settings',
+}
+
+const LAB_STAFF = ['author', 'reviewer', 'approver', 'admin'] as const
+
+const grants = {
+	'workspace:enter': ['author', 'reviewer', 'approver', 'inspector', 'admin'],
+	'material:read': LAB_STAFF,
+	'material:edit': ['author', 'admin'],
+	'spec:read': ['author', 'reviewer', 'approver', 'inspector', 'admin'],
+	'spec:edit': ['author'],
+	'spec-version:sign': ['reviewer', 'approver'],
+	'queue:read': ['author', 'reviewer', 'approver'],
+	'audit:read': ['admin', 'inspector', 'approver'],
+	'inspection:read': ['inspector'],
+	'user:manage': ['admin'],
+	'mailbox:read': ['admin'],
+} as const satisfies Record<string, ReadonlyArray<Role>>
+
+export type Permission = keyof typeof grants
+
+export type Actor = { id: string; name: string; email: string; roles: ReadonlyArray<Role> }
+
+/** True when any of the actor's roles carries the permission. */
+export function can(actor: { roles: ReadonlyArray<Role> } | null | undefined, permission: Permission): boolean {
+	if (!actor) return false
+	const allowed: ReadonlyArray<Role> = grants[permission]
+	return actor.roles.some((role) => allowed.includes(role))
+}
+
+/** Roles that may only read: their non-GET requests are refused before any action runs. */
+export function isReadOnly(actor: { roles: ReadonlyArray<Role> }): boolean {
+	return actor.roles.length > 0 && actor.roles.every((role) => role === 'inspector')
+}
