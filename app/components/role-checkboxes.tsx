@@ -6,6 +6,7 @@ export function RoleCheckboxes({ name, defaultRoles, errors, errorId }: { name: 
 	return (
 		<fieldset aria-describedby={errors?.length ? errorId : undefined}>
 			<legend className="mb-2 text-sm font-medium">Roles</legend>
+			<input type="hidden" name={name} value="" />
 			<div className="grid gap-2 sm:grid-cols-2">
 				{ROLES.map((role) => (
 					<label key={role} className="border-rule hover:bg-paper flex items-start gap-2 rounded-md border p-2 text-sm">

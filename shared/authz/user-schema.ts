@@ -1,9 +1,12 @@
 import { z } from 'zod'
 import { ROLES } from '#shared/authz/permissions.ts'
 
-/** Checkbox groups arrive as a string or an array; both become a list of known roles. */
+/**
+ * Checkbox groups arrive as nothing, a string or an array (the form also sends an empty placeholder so
+ * that "no role ticked" is reported on the field); all become a list of known roles.
+ */
 const RolesField = z.preprocess(
-	(value) => (value === undefined ? [] : Array.isArray(value) ? value : [value]),
+	(value) => (value === undefined ? [] : Array.isArray(value) ? value : [value]).filter((role) => Boolean(role)),
 	z.array(z.enum(ROLES, { message: 'Unknown role' })).min(1, 'Give the account at least one role'),
 )
 

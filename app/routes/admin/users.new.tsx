@@ -41,9 +41,7 @@ export default function NewUser({ actionData }: Route.ComponentProps) {
 	const [form, fields] = useForm({
 		lastResult: actionData?.result,
 		defaultValue: { timeZone: 'UTC' },
-		onValidate: ({ formData }) => parseWithZod(formData, { schema: CreateUserSchema }),
-		shouldValidate: 'onBlur',
-		shouldRevalidate: 'onInput',
+		// Validated on the server only: the role checkboxes are a group that client-side checks report poorly.
 	})
 	const chosenRoles = (fields.roles.value as Array<string> | string | undefined) ?? []
 	return (
