@@ -32,6 +32,10 @@ export type SpectrumMetadata = {
 	points: number
 	/** Every other labelled record kept verbatim (uppercase label → value), e.g. ORIGIN, OWNER, RESOLUTION. */
 	labels: Record<string, string>
+	/** How the data table was written: 'AFFN', 'PAC', 'SQZ', 'SQZDUP', 'DIF', 'DIFDUP', 'XYPOINTS', 'PEAK TABLE', or the text delimiter ('comma', 'semicolon', 'tab', 'whitespace'). */
+	dataForm?: string
+	/** Character encoding the bytes were read with, e.g. 'utf-8', 'utf-16le', 'windows-1252'. */
+	sourceEncoding?: string
 }
 
 export type ImportWarning = { code: string; message: string; line?: number }

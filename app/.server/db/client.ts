@@ -4,8 +4,10 @@ import * as audit from './schema/audit.ts'
 import * as auth from './schema/auth.ts'
 import * as materials from './schema/materials.ts'
 import * as roles from './schema/roles.ts'
+import * as specifications from './schema/specifications.ts'
+import * as spectra from './schema/spectra.ts'
 
-export const schema = { ...auth, ...roles, ...materials, ...audit }
+export const schema = { ...auth, ...roles, ...materials, ...audit, ...spectra, ...specifications }
 
 function connect(url: string) {
 	const client = postgres(url, { max: 10, onnotice: () => {} })

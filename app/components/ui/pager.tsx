@@ -2,7 +2,7 @@ import { Link, useSearchParams } from 'react-router'
 import { cn } from '#app/utils/misc.ts'
 
 /** Previous/next links that keep the other query parameters. */
-export function Pager({ page, pageCount, total, noun }: { page: number; pageCount: number; total: number; noun: string }) {
+export function Pager({ page, pageCount, total, noun, plural }: { page: number; pageCount: number; total: number; noun: string; plural?: string }) {
 	const [searchParams] = useSearchParams()
 	const linkTo = (target: number) => {
 		const next = new URLSearchParams(searchParams)
@@ -13,8 +13,7 @@ export function Pager({ page, pageCount, total, noun }: { page: number; pageCoun
 	return (
 		<nav aria-label="Pages" className="mt-4 flex items-center justify-between text-sm">
 			<p className="text-ink-soft">
-				{total} {noun}
-				{total === 1 ? '' : 's'} · page {page} of {pageCount}
+				{total} {total === 1 ? noun : (plural ?? `${noun}s`)} · page {page} of {pageCount}
 			</p>
 			<div className="flex gap-2">
 				{page > 1 ? (

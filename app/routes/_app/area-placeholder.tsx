@@ -9,20 +9,6 @@ import type { Permission } from '#shared/authz/permissions.ts'
 // Areas of the product that are planned but not built yet. Each still checks its own permission, so the
 // access rules are in force (and tested) before the area itself arrives.
 const AREAS: Record<string, { permission: Permission; title: string; description: string; coming: string }> = {
-	'/spectra': {
-		permission: 'material:read',
-		title: 'Spectra',
-		description: 'Reference and sample spectra with their provenance.',
-		coming:
-			'Upload JCAMP-DX and XY files here, see each spectrum with its peaks and metadata, and pick reference spectra for specifications. Stored spectra are never silently changed.',
-	},
-	'/specifications': {
-		permission: 'spec:edit',
-		title: 'Specifications',
-		description: 'Controlled identity-test specifications and their versions.',
-		coming:
-			'Draft specifications will live here: method, reference spectrum, band table and acceptance criteria, with every version kept and compared.',
-	},
 	'/queue': {
 		permission: 'queue:read',
 		title: 'My queue',

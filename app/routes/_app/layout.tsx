@@ -26,8 +26,8 @@ const NAVIGATION: Array<NavGroup> = [
 		heading: 'Library',
 		items: [
 			{ to: '/materials', label: 'Materials', permission: 'material:read' },
-			{ to: '/spectra', label: 'Spectra', permission: 'material:read' },
-			{ to: '/specifications', label: 'Specifications', permission: 'spec:edit' },
+			{ to: '/spectra', label: 'Spectra', permission: 'spectrum:read' },
+			{ to: '/specifications', label: 'Specifications', permission: 'spec:read' },
 		],
 	},
 	{

@@ -1,6 +1,7 @@
 import { getFormProps, getInputProps, useForm } from '@conform-to/react'
 import { parseWithZod } from '@conform-to/zod/v4'
 import { data, Form, Link, useNavigation } from 'react-router'
+import type { z } from 'zod'
 import type { Route } from './+types/users.new'
 import { authorize } from '#app/.server/context.ts'
 import { db } from '#app/.server/db/client.ts'
@@ -38,7 +39,7 @@ export async function action({ request, context }: Route.ActionArgs) {
 
 export default function NewUser({ actionData }: Route.ComponentProps) {
 	const navigation = useNavigation()
-	const [form, fields] = useForm({
+	const [form, fields] = useForm<z.input<typeof CreateUserSchema>>({
 		lastResult: actionData?.result,
 		defaultValue: { timeZone: 'UTC' },
 		// Validated on the server only: the role checkboxes are a group that client-side checks report poorly.

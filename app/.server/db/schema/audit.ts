@@ -22,6 +22,9 @@ export const auditEvents = pgTable(
 		after: jsonb(),
 		reason: text(),
 		ipAddress: text(),
+		/** Hash of the previous event and this one's own hash, computed by a trigger (see migration 0003). */
+		prevHash: text(),
+		hash: text(),
 	},
 	(table) => [index().on(table.occurredAt), index().on(table.entityType, table.entityId), index().on(table.actorId)],
 )

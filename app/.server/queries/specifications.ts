@@ -1,0 +1,183 @@
+import { aliasedTable, and, asc, count, desc, eq, ilike, or, sql, type SQL } from 'drizzle-orm'
+import { z } from 'zod'
+import type { Db } from '#app/.server/db/client.ts'
+import { users } from '#app/.server/db/schema/auth.ts'
+import { materials } from '#app/.server/db/schema/materials.ts'
+import { evidence, specifications, specVersions, VERSION_STATES } from '#app/.server/db/schema/specifications.ts'
+import { spectra } from '#app/.server/db/schema/spectra.ts'
+import { parseContent } from '#app/.server/services/specifications.ts'
+
+export const SpecificationListQuerySchema = z.object({
+	q: z.string().trim().max(100).optional().catch(undefined),
+	state: z.enum(VERSION_STATES).optional().catch(undefined),
+	materialId: z.string().uuid().optional().catch(undefined),
+	ownerId: z.string().max(64).optional().catch(undefined),
+	page: z.coerce.number().int().min(1).max(100_000).catch(1),
+})
+export type SpecificationListQuery = z.infer<typeof SpecificationListQuerySchema>
+export const SPECIFICATION_PAGE_SIZE = 25
+
+/** Specifications with their latest version, filtered by that version's state, the material and the owner. */
+export async function listSpecifications(db: Db, query: SpecificationListQuery) {
+	const latest = db
+		.select({
+			specificationId: specVersions.specificationId,
+			versionId: sql<string>`(array_agg(${specVersions.id} order by ${specVersions.versionNumber} desc))[1]`.as('version_id'),
+		})
+		.from(specVersions)
+		.groupBy(specVersions.specificationId)
+		.as('latest')
+	const filters: Array<SQL> = []
+	if (query.q) {
+		const pattern = `%${query.q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`
+		const match = or(ilike(specifications.documentNumber, pattern), ilike(specifications.title, pattern), ilike(materials.name, pattern), ilike(materials.code, pattern))
+		if (match) filters.push(match)
+	}
+	if (query.state) filters.push(eq(specVersions.state, query.state))
+	if (query.materialId) filters.push(eq(specifications.materialId, query.materialId))
+	if (query.ownerId) filters.push(eq(specifications.ownerId, query.ownerId))
+	const where = filters.length ? and(...filters) : undefined
+	const base = () =>
+		db
+			.select({
+				id: specifications.id,
+				documentNumber: specifications.documentNumber,
+				title: specifications.title,
+				materialCode: materials.code,
+				materialName: materials.name,
+				ownerName: users.name,
+				versionId: specVersions.id,
+				versionNumber: specVersions.versionNumber,
+				state: specVersions.state,
+				updatedAt: specVersions.updatedAt,
+			})
+			.from(specifications)
+			.innerJoin(materials, eq(materials.id, specifications.materialId))
+			.innerJoin(users, eq(users.id, specifications.ownerId))
+			.innerJoin(latest, eq(latest.specificationId, specifications.id))
+			.innerJoin(specVersions, eq(specVersions.id, latest.versionId))
+	const [rows, totals, owners] = await Promise.all([
+		base()
+			.where(where)
+			.orderBy(asc(specifications.documentNumber))
+			.limit(SPECIFICATION_PAGE_SIZE)
+			.offset((query.page - 1) * SPECIFICATION_PAGE_SIZE),
+		db
+			.select({ total: count() })
+			.from(specifications)
+			.innerJoin(materials, eq(materials.id, specifications.materialId))
+			.innerJoin(latest, eq(latest.specificationId, specifications.id))
+			.innerJoin(specVersions, eq(specVersions.id, latest.versionId))
+			.where(where),
+		db.selectDistinct({ id: users.id, name: users.name }).from(specifications).innerJoin(users, eq(users.id, specifications.ownerId)).orderBy(asc(users.name)),
+	])
+	const total = totals[0]?.total ?? 0
+	return {
+		rows: rows.map((row) => ({ ...row, updatedAt: row.updatedAt.toISOString() })),
+		total,
+		pageCount: Math.max(1, Math.ceil(total / SPECIFICATION_PAGE_SIZE)),
+		owners,
+	}
+}
+
+/** The latest version of a specification (for links to "the specification"), or null. */
+export async function getLatestVersionId(db: Db, specificationId: string): Promise<string | null> {
+	if (!z.uuid().safeParse(specificationId).success) return null
+	const [row] = await db
+		.select({ id: specVersions.id })
+		.from(specVersions)
+		.where(eq(specVersions.specificationId, specificationId))
+		.orderBy(desc(specVersions.versionNumber))
+		.limit(1)
+	return row?.id ?? null
+}
+
+/** Everything the version workspace shows, or null when the version is not of that specification. */
+export async function getVersionWorkspace(db: Db, specificationId: string, versionId: string) {
+	if (!z.uuid().safeParse(specificationId).success || !z.uuid().safeParse(versionId).success) return null
+	const author = aliasedTable(users, 'author')
+	const [row] = await db
+		.select({ version: specVersions, specification: specifications, material: materials, authorName: author.name })
+		.from(specVersions)
+		.innerJoin(specifications, eq(specifications.id, specVersions.specificationId))
+		.innerJoin(materials, eq(materials.id, specifications.materialId))
+		.innerJoin(author, eq(author.id, specVersions.authorId))
+		.where(and(eq(specVersions.id, versionId), eq(specVersions.specificationId, specificationId)))
+	if (!row) return null
+	const content = parseContent(row.version.content)
+	const [versions, evidenceRows, reference] = await Promise.all([
+		db
+			.select({
+				id: specVersions.id,
+				versionNumber: specVersions.versionNumber,
+				state: specVersions.state,
+				changeReason: specVersions.changeReason,
+				effectiveAt: specVersions.effectiveAt,
+				updatedAt: specVersions.updatedAt,
+			})
+			.from(specVersions)
+			.where(eq(specVersions.specificationId, specificationId))
+			.orderBy(desc(specVersions.versionNumber)),
+		db
+			.select({
+				id: evidence.id,
+				kind: evidence.kind,
+				title: evidence.title,
+				verdict: evidence.verdict,
+				correlation: evidence.correlation,
+				result: evidence.result,
+				sampleSpectrumId: evidence.sampleSpectrumId,
+				createdAt: evidence.createdAt,
+				createdByName: users.name,
+			})
+			.from(evidence)
+			.innerJoin(users, eq(users.id, evidence.createdBy))
+			.where(eq(evidence.versionId, versionId))
+			.orderBy(desc(evidence.createdAt)),
+		content.referenceSpectrumId
+			? db
+					.select({ id: spectra.id, fileName: spectra.fileName, sha256: spectra.sha256, minWavenumber: spectra.minWavenumber, maxWavenumber: spectra.maxWavenumber })
+					.from(spectra)
+					.where(eq(spectra.id, content.referenceSpectrumId))
+					.then((found) => found[0] ?? null)
+			: Promise.resolve(null),
+	])
+	return {
+		specification: {
+			id: row.specification.id,
+			documentNumber: row.specification.documentNumber,
+			title: row.specification.title,
+			material: { id: row.material.id, code: row.material.code, name: row.material.name, casNumber: row.material.casNumber },
+		},
+		version: {
+			id: row.version.id,
+			versionNumber: row.version.versionNumber,
+			state: row.version.state,
+			revision: row.version.revision,
+			changeReason: row.version.changeReason,
+			authorId: row.version.authorId,
+			authorName: row.authorName,
+			editorIds: row.version.editorIds,
+			updatedAt: row.version.updatedAt.toISOString(),
+			effectiveFrom: row.version.effectiveFrom?.toISOString() ?? null,
+			lockedAt: row.version.lockedAt?.toISOString() ?? null,
+			contentSha256: row.version.contentSha256,
+			lastRejectionReason: row.version.lastRejectionReason,
+		},
+		content,
+		reference,
+		versions: versions.map((version) => ({ ...version, effectiveAt: version.effectiveAt?.toISOString() ?? null, updatedAt: version.updatedAt.toISOString() })),
+		evidence: evidenceRows.map((item) => ({ ...item, createdAt: item.createdAt.toISOString() })),
+	}
+}
+
+/** Spectra an author may pick: references for the version's reference, any spectrum to compare. */
+export async function listSpectrumChoices(db: Db) {
+	const rows = await db
+		.select({ id: spectra.id, fileName: spectra.fileName, purpose: spectra.purpose, materialCode: materials.code })
+		.from(spectra)
+		.leftJoin(materials, eq(materials.id, spectra.materialId))
+		.orderBy(desc(spectra.uploadedAt))
+		.limit(500)
+	return rows
+}

@@ -1,0 +1,109 @@
+import { createHash } from 'node:crypto'
+import { eq } from 'drizzle-orm'
+import type { Db } from '#app/.server/db/client.ts'
+import { spectra } from '#app/.server/db/schema/spectra.ts'
+import { recordAudit } from '#app/.server/services/audit.ts'
+import type { Actor } from '#shared/authz/permissions.ts'
+import { ENGINE_VERSION } from '#shared/spectra/preprocess.ts'
+import { importSpectrum } from '#shared/spectra/import.ts'
+import type { SpectrumMetadata } from '#shared/spectra/spectrum-metadata-schema.ts'
+import type { Spectrum } from '#shared/spectra/types.ts'
+
+/** Largest file accepted by the library (bytes); the importer refuses anything larger with a clear message. */
+export const MAX_SPECTRUM_FILE_BYTES = 10 * 1024 * 1024
+
+export type UploadOutcome =
+	| { fileName: string; status: 'stored'; spectrumId: string; points: number; warnings: Array<string> }
+	| { fileName: string; status: 'duplicate'; spectrumId: string; message: string }
+	| { fileName: string; status: 'failed'; message: string }
+
+/** Float64 arrays are stored as their little-endian bytes (x86 and ARM are little-endian). */
+export function floatsToBytes(values: Float64Array): Uint8Array {
+	return new Uint8Array(values.buffer, values.byteOffset, values.byteLength)
+}
+
+/** The inverse of floatsToBytes; copies so that the result is aligned whatever buffer the driver gave. */
+export function bytesToFloats(bytes: Uint8Array): Float64Array {
+	return new Float64Array(bytes.slice().buffer)
+}
+
+export function sha256Hex(bytes: Uint8Array): string {
+	return createHash('sha256').update(bytes).digest('hex')
+}
+
+/**
+ * Stores one uploaded file: recognised by its SHA-256 if already stored; otherwise parsed, and either stored
+ * (original bytes + parsed arrays + metadata + audit event, in one transaction) or refused with the importer's
+ * message and nothing saved.
+ */
+export async function storeSpectrumFile(
+	db: Db,
+	input: { actor: Actor; fileName: string; bytes: Uint8Array; metadata: SpectrumMetadata; now: Date },
+): Promise<UploadOutcome> {
+	const { fileName, bytes } = input
+	const sha256 = sha256Hex(bytes)
+	const [existing] = await db.select({ id: spectra.id, fileName: spectra.fileName }).from(spectra).where(eq(spectra.sha256, sha256))
+	if (existing) {
+		return {
+			fileName,
+			status: 'duplicate',
+			spectrumId: existing.id,
+			message: `This file is already in the library (stored as ${existing.fileName}); it was not stored twice.`,
+		}
+	}
+	const imported = importSpectrum(bytes, { fileName, maxBytes: MAX_SPECTRUM_FILE_BYTES })
+	if (!imported.ok) return { fileName, status: 'failed', message: imported.error.message }
+	const { spectrum, metadata, warnings } = imported.value
+	const points = spectrum.x.length
+	const id = await db.transaction(async (tx) => {
+		const [row] = await tx
+			.insert(spectra)
+			.values({
+				sha256,
+				fileName,
+				byteSize: bytes.byteLength,
+				originalBytes: bytes,
+				format: metadata.format,
+				title: metadata.title,
+				points,
+				minWavenumber: spectrum.x[0]!,
+				maxWavenumber: spectrum.x[points - 1]!,
+				xUnits: metadata.xUnits,
+				yUnits: metadata.yUnits,
+				ordinate: metadata.ordinate,
+				x: floatsToBytes(spectrum.x),
+				y: floatsToBytes(spectrum.y),
+				warnings,
+				labels: metadata.labels,
+				parserVersion: ENGINE_VERSION,
+				...input.metadata,
+				uploadedBy: input.actor.id,
+				uploadedAt: input.now,
+			})
+			.onConflictDoNothing({ target: spectra.sha256 })
+			.returning({ id: spectra.id })
+		if (!row) return null
+		await recordAudit(tx, {
+			actor: { id: input.actor.id, label: input.actor.email },
+			action: 'spectrum.uploaded',
+			entityType: 'spectrum',
+			entityId: row.id,
+			after: { fileName, sha256, points, format: metadata.format, ordinate: metadata.ordinate, purpose: input.metadata.purpose },
+			occurredAt: input.now,
+		})
+		return row.id
+	})
+	if (!id) {
+		// Someone stored the same bytes between our check and our insert.
+		const [winner] = await db.select({ id: spectra.id }).from(spectra).where(eq(spectra.sha256, sha256))
+		return { fileName, status: 'duplicate', spectrumId: winner!.id, message: 'This file is already in the library; it was not stored twice.' }
+	}
+	return { fileName, status: 'stored', spectrumId: id, points, warnings: warnings.map((warning) => warning.message) }
+}
+
+/** The parsed data of a stored spectrum, or null. */
+export async function loadSpectrum(db: Db, id: string): Promise<{ spectrum: Spectrum; sha256: string; fileName: string } | null> {
+	const [row] = await db.select({ x: spectra.x, y: spectra.y, sha256: spectra.sha256, fileName: spectra.fileName }).from(spectra).where(eq(spectra.id, id))
+	if (!row) return null
+	return { spectrum: { x: bytesToFloats(row.x), y: bytesToFloats(row.y) }, sha256: row.sha256, fileName: row.fileName }
+}

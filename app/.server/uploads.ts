@@ -1,0 +1,31 @@
+import { MaxFileSizeExceededError, MaxFilesExceededError, parseFormData } from '@remix-run/form-data-parser'
+import { data } from 'react-router'
+import { MAX_SPECTRUM_FILE_BYTES } from '#app/.server/services/spectra.ts'
+
+/** Most files accepted in one request of the plain (no-JavaScript) upload form. */
+export const MAX_FILES_PER_REQUEST = 50
+
+/**
+ * Parses a multipart upload as a stream with per-file and per-request limits. Over a limit, answers 413
+ * with a message that says what to do; nothing of the request is kept.
+ */
+export async function parseUpload(request: Request): Promise<FormData> {
+	try {
+		return await parseFormData(
+			request,
+			{ maxFileSize: MAX_SPECTRUM_FILE_BYTES, maxFiles: MAX_FILES_PER_REQUEST, maxHeaderSize: 8 * 1024 },
+			(file) => file,
+		)
+	} catch (error) {
+		if (error instanceof MaxFileSizeExceededError) {
+			throw data(
+				{ message: `A file is larger than ${MAX_SPECTRUM_FILE_BYTES / 1024 / 1024} MB, the most the library takes. Nothing was stored; remove that file and upload again.` },
+				{ status: 413 },
+			)
+		}
+		if (error instanceof MaxFilesExceededError) {
+			throw data({ message: `Upload at most ${MAX_FILES_PER_REQUEST} files at a time.` }, { status: 413 })
+		}
+		throw error
+	}
+}
