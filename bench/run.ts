@@ -1,3 +1,5 @@
+export {}
+
 /**
  * `npm run bench`: every benchmark, each printing values and ratios measured in this one run (a ratio
  * compares two things timed side by side, so it means something on any machine).
@@ -8,6 +10,7 @@ type Bench = { title: string; run: () => Promise<Array<Measurement>> }
 const benches: Array<Bench> = [
 	{ title: 'Spectral engine', run: async () => (await import('./engine.ts')).benchEngine() },
 	{ title: 'Import', run: async () => (await import('./import.ts')).benchImport() },
+	{ title: 'Dossier', run: async () => (await import('./dossier.ts')).benchDossier() },
 ]
 
 const only = process.argv[2]

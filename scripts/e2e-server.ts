@@ -1,10 +1,12 @@
 /**
  * The server behind the end-to-end tests: its own PostgreSQL cluster (purpose 'e2e'), a fresh database
- * with the demo scenario, and the production build on 127.0.0.1:PORT. Stops everything on SIGTERM.
+ * with the demo scenario, a fake SMTP server on a free port (unless SMTP_URL is set), and the production build on
+ * 127.0.0.1:PORT. Stops everything on SIGTERM.
  */
 import { spawn } from 'node:child_process'
 import path from 'node:path'
 import postgres from 'postgres'
+import { startFakeSmtp } from './fake-smtp.ts'
 import { databaseNameOf, ensureDatabase, projectRoot, runMigrations, startCluster, withDatabase } from './postgres-cluster.ts'
 
 const port = Number(process.env.PORT ?? 4173)
@@ -22,17 +24,27 @@ const { db, closeDb } = await import('#app/.server/db/client.ts')
 const { seedDemoScenario } = await import('./demo-scenario.ts')
 await seedDemoScenario(db)
 await closeDb()
+const fakeSmtp = process.env.SMTP_URL ? null : await startFakeSmtp({ databaseUrl: url })
 
 const server = spawn(path.join(projectRoot, 'node_modules/.bin/react-router-serve'), ['./build/server/index.js'], {
 	cwd: projectRoot,
 	stdio: 'inherit',
-	env: { ...process.env, NODE_ENV: 'production', BANDPROOF_DEMO: '1', DATABASE_URL: url, PORT: String(port), HOST: '127.0.0.1' },
+	env: {
+		...process.env,
+		NODE_ENV: 'production',
+		BANDPROOF_DEMO: '1',
+		DATABASE_URL: url,
+		PORT: String(port),
+		HOST: '127.0.0.1',
+		...(fakeSmtp ? { SMTP_URL: fakeSmtp.url } : {}),
+	},
 })
 let stopping = false
 async function stop(code: number) {
 	if (stopping) return
 	stopping = true
 	server.kill('SIGTERM')
+	await fakeSmtp?.stop()
 	await cluster.stop()
 	process.exit(code)
 }

@@ -1,12 +1,14 @@
 import { betterAuth } from 'better-auth'
 import { drizzleAdapter } from 'better-auth/adapters/drizzle'
 import { APIError, createAuthMiddleware } from 'better-auth/api'
-import { eq, sql } from 'drizzle-orm'
+import { verifyPassword } from 'better-auth/crypto'
+import { and, eq, sql } from 'drizzle-orm'
 import { db } from '#app/.server/db/client.ts'
 import { accounts, sessions, users, verifications } from '#app/.server/db/schema/auth.ts'
 import { env } from '#app/.server/env.ts'
 import { recordAudit } from '#app/.server/services/audit.ts'
 import { decideSignInGate, lockUntilAfterFailure } from '#shared/authz/sign-in-gate.ts'
+import { DomainError, err, ok, type Result } from '#shared/errors.ts'
 
 const DEVELOPMENT_SECRET = 'bandproof-development-secret-not-for-production-use'
 
@@ -87,8 +89,31 @@ function createAuth() {
 	})
 }
 
+/**
+ * Re-authentication for an electronic signature (21 CFR 11.200(a)(1)): the signer types their password again.
+ * A wrong password counts toward lock-out exactly like a failed sign-in; a locked or deactivated account
+ * cannot sign.
+ */
+export async function reauthenticate(userId: string, password: string): Promise<Result<true, DomainError>> {
+	const [user] = await db.select().from(users).where(eq(users.id, userId))
+	if (!user) return err(new DomainError('Your account was not found.', 401))
+	const gate = decideSignInGate(user, new Date())
+	if (!gate.ok) return err(new DomainError(gate.error, 403))
+	const [account] = await db
+		.select({ password: accounts.password })
+		.from(accounts)
+		.where(and(eq(accounts.userId, userId), eq(accounts.providerId, 'credential')))
+	const matches = account?.password ? await verifyPassword({ hash: account.password, password }) : false
+	if (!matches) {
+		await recordFailedSignIn(user.email, null, 'signature')
+		return err(new DomainError('The password is not right; nothing was signed. Repeated failures lock your account.', 401))
+	}
+	if (user.failedSignIns > 0) await db.update(users).set({ failedSignIns: 0 }).where(eq(users.id, userId))
+	return ok(true)
+}
+
 /** Counts a failed password against the account and locks it at the threshold. */
-async function recordFailedSignIn(email: string, ipAddress: string | null): Promise<void> {
+async function recordFailedSignIn(email: string, ipAddress: string | null, during: 'sign-in' | 'signature' = 'sign-in'): Promise<void> {
 	const settings = env()
 	await db.transaction(async (tx) => {
 		const [user] = await tx
@@ -109,7 +134,7 @@ async function recordFailedSignIn(email: string, ipAddress: string | null): Prom
 			action: 'user.sign-in-failed',
 			entityType: 'user',
 			entityId: user?.id ?? null,
-			after: user ? { failedSignIns: user.failedSignIns, lockedUntil: lockedUntil?.toISOString() ?? null } : null,
+			after: user ? { failedSignIns: user.failedSignIns, lockedUntil: lockedUntil?.toISOString() ?? null, during } : { during },
 			ipAddress,
 		})
 		if (user && lockedUntil) {

@@ -17,6 +17,45 @@ function newRowId(): string {
 	return `band-${Date.now().toString(36)}-${counter}`
 }
 
+/** The band table of a version that can no longer be edited, as plain text. */
+export function BandTableView({ rows }: { rows: Array<BandRow> }) {
+	return (
+		<section aria-labelledby="band-table-heading">
+			<h3 id="band-table-heading" className="mb-2 text-base font-bold">
+				Band table <span className="text-ink-faint text-sm font-normal">({rows.length} {rows.length === 1 ? 'band' : 'bands'})</span>
+			</h3>
+			{rows.length === 0 ? (
+				<p className="text-ink-soft text-sm">No bands.</p>
+			) : (
+				<table className="w-full text-sm">
+					<thead>
+						<tr className="border-rule border-b text-left">
+							<th scope="col" className="py-1.5 pr-3 font-semibold">Position (cm⁻¹)</th>
+							<th scope="col" className="py-1.5 pr-3 font-semibold">± cm⁻¹</th>
+							<th scope="col" className="py-1.5 pr-3 font-semibold">Assignment</th>
+							<th scope="col" className="py-1.5 pr-3 font-semibold">Intensity</th>
+							<th scope="col" className="py-1.5 pr-3 font-semibold">Shape</th>
+							<th scope="col" className="py-1.5 font-semibold">Required</th>
+						</tr>
+					</thead>
+					<tbody>
+						{rows.map((row) => (
+							<tr key={row.id} className="border-rule border-b last:border-0">
+								<td className="py-1 pr-3 tabular-nums">{row.position}</td>
+								<td className="py-1 pr-3 tabular-nums">{row.tolerance ?? 'default'}</td>
+								<td className="py-1 pr-3">{row.assignment || '—'}</td>
+								<td className="py-1 pr-3">{INTENSITY_LABELS[row.intensityClass]}</td>
+								<td className="py-1 pr-3">{row.shape}</td>
+								<td className="py-1">{row.required ? 'yes' : 'no'}</td>
+							</tr>
+						))}
+					</tbody>
+				</table>
+			)}
+		</section>
+	)
+}
+
 /**
  * The band table of a draft: rows of position, tolerance, assignment, intensity class, shape and whether the
  * band is required; add, remove and reorder; fill from the reference's peaks. The rows travel with the draft
@@ -27,14 +66,13 @@ export function BandTableEditor({
 	initialRows,
 	problems,
 	suggestionsUrl,
-	readOnly,
 }: {
 	name: string
 	initialRows: Array<BandRow>
 	problems: Array<BandRowProblem>
 	suggestionsUrl: string
-	readOnly: boolean
 }) {
+	const readOnly = false
 	const [rows, setRows] = useState(initialRows)
 	const suggestions = useFetcher<SuggestionPayload>()
 	useEffect(() => setRows(initialRows), [initialRows])

@@ -43,7 +43,7 @@ type SpecificityResult = {
 	specific: boolean
 	comparedWith: number
 	replicates: Array<number>
-	suggestion: { threshold: number; lowestReplicate: number; nearestNonTarget: number } | null
+	suggestion: { threshold: number; lowestReplicate: number; nearestNonTarget: number; rule?: 'midpoint' | 'guidance-floor' } | null
 	thinMargin: boolean
 }
 
@@ -196,7 +196,8 @@ function SpecificityDetail({ result, evidenceId, canAccept }: { result: Specific
 			{result.suggestion ? (
 				<div className="border-accent bg-accent-soft flex flex-wrap items-center gap-3 rounded-md border px-3 py-2">
 					<p className="flex-1">
-						Suggested minimum correlation: <span className="font-semibold tabular-nums">{result.suggestion.threshold}</span>, halfway between the lowest replicate ({result.suggestion.lowestReplicate.toFixed(4)}) and the nearest other material ({result.suggestion.nearestNonTarget.toFixed(4)}).
+						Suggested minimum correlation: <span className="font-semibold tabular-nums">{result.suggestion.threshold}</span>, between the lowest replicate ({result.suggestion.lowestReplicate.toFixed(4)}) and the nearest other material ({result.suggestion.nearestNonTarget.toFixed(4)})
+						{result.suggestion.rule === 'guidance-floor' ? ': their midpoint lies below 0.95, the lowest threshold regulatory guidance accepts without justification, so 0.95 is suggested.' : ', at their midpoint.'}
 					</p>
 					{canAccept ? (
 						<Form method="post">

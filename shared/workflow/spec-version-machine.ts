@@ -3,9 +3,9 @@
  * `decideTransition(snapshot, event, actor, now) → Result<{ next, effects }>`. Only services persist: they load
  * the snapshot, call this, then apply `next` and every effect in one database transaction with its audit event.
  *
- * Draft → In review → Approved → Effective → Superseded, or Effective → Retired; a rejection (from In review or
- * Approved) or a withdrawal (from In review) returns the version to Draft, and the signatures collected so far no
- * longer count. The rules follow 21 CFR 11.10(f) (permitted sequencing), 11.10(g) (authority checks), 11.50
+ * Draft → In review → Approved → Effective → Superseded, or Approved/Effective → Retired; a rejection or a
+ * withdrawal (both from In review) returns the version to Draft, and the signatures collected so far no longer
+ * count. Approved versions are locked (by the database too), so they only move forward. The rules follow 21 CFR 11.10(f) (permitted sequencing), 11.10(g) (authority checks), 11.50
  * (signature manifestation) and 11.200(a) (re-authentication at signing); see FACTS.md §3.1, and PRODUCT.md §2 for
  * segregation of duties (author, reviewer and approver of one version are three different people).
  *
@@ -63,6 +63,8 @@ export type RecordedSignature = { userId: string; meaning: SignatureMeaning; sig
 export type VersionSnapshot = {
 	state: VersionState
 	authorId: string
+	/** Everyone else who edited the version's content; for segregation of duties they count as authors. */
+	coAuthorIds?: ReadonlyArray<string>
 	versionNumber: number
 	changeReason: string | null
 	signatures: ReadonlyArray<RecordedSignature>
@@ -134,8 +136,6 @@ export type Effect =
 	| { kind: 'void-signatures' }
 	/** Store `at` as the version's effective date; the scheduler applies `make-effective` once `now ≥ at`. */
 	| { kind: 'schedule-effective'; at: Date }
-	/** Clear the stored effective date (the approval it came with no longer stands). */
-	| { kind: 'clear-effective-from' }
 	/** In the same transaction, apply `supersede` to the specification's previously effective version, if any. */
 	| { kind: 'supersede-previous' }
 	| { kind: 'notify'; template: NotificationTemplate; to: Array<Recipient> }
@@ -195,12 +195,14 @@ const STEP_RULES: Record<WorkflowAction, { from: ReadonlyArray<VersionState>; ro
 	{
 		submit: { from: ['draft'], roles: ['author'] },
 		withdraw: { from: ['in_review'], roles: ['author'] },
-		reject: { from: ['in_review', 'approved'], roles: ['reviewer', 'approver'] },
+		// NOTE: an approved version is locked by the database, so it never goes back to draft; an approval that
+		// must not take effect is retired instead (approved → retired).
+		reject: { from: ['in_review'], roles: ['reviewer', 'approver'] },
 		'sign-reviewed': { from: ['in_review'], roles: ['reviewer'] },
 		'sign-approved': { from: ['in_review'], roles: ['approver'] },
 		'make-effective': { from: ['approved'], roles: 'system' },
 		supersede: { from: ['effective'], roles: 'system' },
-		retire: { from: ['effective'], roles: ['approver'] },
+		retire: { from: ['approved', 'effective'], roles: ['approver'] },
 	}
 
 /** A version's submission requirements, as data: the UI lists them, `submit` checks them in this order. */
@@ -269,14 +271,14 @@ function checkStep(
 	} else {
 		if (actor === SYSTEM) return refusal('role', `${label} needs a person; the system cannot take this step.`)
 		// NOTE: an Approved version is QA's decision; only an approver may send it back (PRODUCT.md §2).
-		const roles: ReadonlyArray<Role> = action === 'reject' && snapshot.state === 'approved' ? ['approver'] : rule.roles
+		const roles: ReadonlyArray<Role> = rule.roles
 		if (!actor.roles.some((role) => roles.includes(role))) {
 			return refusal('role', `${label} needs the ${roles.join(' or ')} role.`)
 		}
 	}
 
 	const person = actor === SYSTEM ? null : actor
-	const isAuthor = person !== null && person.id === snapshot.authorId
+	const isAuthor = person !== null && (person.id === snapshot.authorId || (snapshot.coAuthorIds ?? []).includes(person.id))
 	const ownSignature = person && snapshot.signatures.find((signature) => signature.userId === person.id)
 	const reviewed = currentSignature(snapshot, 'reviewed')
 	switch (action) {
@@ -380,7 +382,6 @@ export function decideTransition(
 				return err(refusal('reason', `A rejection needs a reason of at least ${MIN_REASON_LENGTH} characters.`))
 			}
 			const effects: Array<Effect> = [{ kind: 'void-signatures' }]
-			if (snapshot.effectiveFrom !== null) effects.push({ kind: 'clear-effective-from' })
 			const rejector = actor === SYSTEM ? undefined : actor.id
 			effects.push({
 				kind: 'notify',

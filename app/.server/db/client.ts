@@ -3,11 +3,12 @@ import postgres from 'postgres'
 import * as audit from './schema/audit.ts'
 import * as auth from './schema/auth.ts'
 import * as materials from './schema/materials.ts'
+import * as outbox from './schema/outbox.ts'
 import * as roles from './schema/roles.ts'
 import * as specifications from './schema/specifications.ts'
 import * as spectra from './schema/spectra.ts'
 
-export const schema = { ...auth, ...roles, ...materials, ...audit, ...spectra, ...specifications }
+export const schema = { ...auth, ...roles, ...materials, ...audit, ...spectra, ...specifications, ...outbox }
 
 function connect(url: string) {
 	const client = postgres(url, { max: 10, onnotice: () => {} })

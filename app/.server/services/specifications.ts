@@ -281,10 +281,7 @@ export async function recordSpecificity(
 		),
 	)
 	const lowestReplicate = replicateScores.length ? Math.min(...replicateScores) : null
-	const suggestion =
-		lowestReplicate !== null && nearest && lowestReplicate > nearest.correlation
-			? { threshold: Math.round(((lowestReplicate + nearest.correlation) / 2) * 1000) / 1000, lowestReplicate, nearestNonTarget: nearest.correlation }
-			: null
+	const suggestion = lowestReplicate !== null && nearest && lowestReplicate > nearest.correlation ? suggestThreshold(lowestReplicate, nearest.correlation) : null
 	const summary = {
 		...result.value,
 		nearest: nearest ? { ...nearest, fileName: names.get(nearest.id) ?? nearest.id, materialName: materialNames.get(nearest.material) ?? nearest.material } : null,
@@ -335,7 +332,7 @@ export async function acceptThresholdSuggestion(
 	const [version] = await db.select().from(specVersions).where(eq(specVersions.id, input.versionId))
 	if (!version) return err(new NotFound('The specification version'))
 	const content = parseContent(version.content)
-	const justification = `Minimum correlation ${suggestion.threshold}: halfway between the lowest correlation of replicate reference measurements (${suggestion.lowestReplicate.toFixed(4)}) and the nearest reference of another material (${suggestion.nearestNonTarget.toFixed(4)}), from the specificity check of ${input.now.toISOString().slice(0, 10)}.`
+	const justification = `Minimum correlation ${suggestion.threshold}: between the lowest correlation of replicate reference measurements (${suggestion.lowestReplicate.toFixed(4)}) and the nearest reference of another material (${suggestion.nearestNonTarget.toFixed(4)}), from the specificity check of ${input.now.toISOString().slice(0, 10)}.`
 	const next: SpecVersionContent = {
 		...content,
 		criteria: {
@@ -347,4 +344,22 @@ export async function acceptThresholdSuggestion(
 	const saved = await saveDraft(db, { actor: input.actor, versionId: input.versionId, revision: version.revision, content: next, changeReason: version.changeReason, now: input.now })
 	if (!saved.ok) return saved
 	return ok({ revision: saved.value.revision, threshold: suggestion.threshold })
+}
+
+/**
+ * Lowest correlation regulatory guidance accepts without further justification (FACTS.md §2.3, READ-2°); a
+ * suggested threshold does not go below it unless the data leave no room above it.
+ */
+export const THRESHOLD_GUIDANCE_FLOOR = 0.95
+
+/**
+ * A minimum correlation justified by data: between the lowest replicate of the material and the nearest other
+ * material — their midpoint, raised to the guidance floor when that still leaves the replicates clear of it.
+ */
+export function suggestThreshold(lowestReplicate: number, nearestNonTarget: number) {
+	const midpoint = (lowestReplicate + nearestNonTarget) / 2
+	const ceiling = lowestReplicate - 0.005
+	const raised = midpoint < THRESHOLD_GUIDANCE_FLOOR && THRESHOLD_GUIDANCE_FLOOR <= ceiling
+	const threshold = raised ? THRESHOLD_GUIDANCE_FLOOR : midpoint
+	return { threshold: Math.round(threshold * 1000) / 1000, lowestReplicate, nearestNonTarget, rule: raised ? ('guidance-floor' as const) : ('midpoint' as const) }
 }

@@ -9,25 +9,12 @@ import type { Permission } from '#shared/authz/permissions.ts'
 // Areas of the product that are planned but not built yet. Each still checks its own permission, so the
 // access rules are in force (and tested) before the area itself arrives.
 const AREAS: Record<string, { permission: Permission; title: string; description: string; coming: string }> = {
-	'/queue': {
-		permission: 'queue:read',
-		title: 'My queue',
-		description: 'What waits for you.',
-		coming: 'Drafts to finish, reviews to redline and versions waiting for your signature will be listed here.',
-	},
 	'/inspection': {
 		permission: 'inspection:read',
 		title: 'Inspection',
 		description: 'Read-only access for the duration of your grant.',
 		coming:
 			'The effective and historical versions, dossiers and audit extracts that your access grant covers will be listed here.',
-	},
-	'/admin/mailbox': {
-		permission: 'mailbox:read',
-		title: 'Outgoing mail',
-		description: 'Notifications sent by Bandproof.',
-		coming:
-			'Review requests, redline notices and approvals will appear here as they are sent, so that you can check what each person was told.',
 	},
 }
 

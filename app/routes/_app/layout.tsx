@@ -1,6 +1,8 @@
 import { Form, NavLink, Outlet } from 'react-router'
 import type { Route } from './+types/layout'
 import { actorContext, authorize, requireSignedIn } from '#app/.server/context.ts'
+import { db } from '#app/.server/db/client.ts'
+import { listQueue } from '#app/.server/queries/queue.ts'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { cn } from '#app/utils/misc.ts'
 import { type Actor, can, type Permission, ROLE_LABELS } from '#shared/authz/permissions.ts'
@@ -12,9 +14,10 @@ export const middleware: Array<Route.MiddlewareFunction> = [
 	},
 ]
 
-export function loader({ context }: Route.LoaderArgs) {
+export async function loader({ context }: Route.LoaderArgs) {
 	const actor = authorize(context, 'workspace:enter')
-	return { actor: context.get(actorContext) ?? actor }
+	const queueCount = can(actor, 'queue:read') ? (await listQueue(db, actor)).length : 0
+	return { actor: context.get(actorContext) ?? actor, queueCount }
 }
 
 type NavItem = { to: string; label: string; permission: Permission; end?: boolean }
@@ -54,7 +57,7 @@ function visibleNavigation(actor: Actor): Array<NavGroup> {
 }
 
 export default function SignedInLayout({ loaderData }: Route.ComponentProps) {
-	const { actor } = loaderData
+	const { actor, queueCount } = loaderData
 	return (
 		<div className="flex min-h-screen">
 			<a href="#main" className="bg-accent text-paper sr-only z-50 rounded px-3 py-2 focus:not-sr-only focus:fixed focus:top-2 focus:left-2">
@@ -85,6 +88,11 @@ export default function SignedInLayout({ loaderData }: Route.ComponentProps) {
 											}
 										>
 											{item.label}
+											{item.to === '/queue' && queueCount > 0 ? (
+												<span className="bg-accent text-paper ml-2 rounded-full px-1.5 py-0.5 text-xs font-semibold" aria-label={`${queueCount} waiting`} data-testid="queue-count">
+													{queueCount}
+												</span>
+											) : null}
 										</NavLink>
 									</li>
 								))}

@@ -3,6 +3,7 @@ import type { Route } from './+types/index'
 import { authorize } from '#app/.server/context.ts'
 import { db } from '#app/.server/db/client.ts'
 import { AuditQuerySchema, listAuditEvents } from '#app/.server/queries/audit.ts'
+import { verifyAuditChain } from '#app/.server/queries/audit-chain.ts'
 import { inputClass } from '#app/components/forms.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { buttonVariants } from '#app/components/ui/button.tsx'
@@ -10,11 +11,18 @@ import { EmptyState } from '#app/components/ui/empty-state.tsx'
 import { PageHeader } from '#app/components/ui/page-header.tsx'
 import { Pager } from '#app/components/ui/pager.tsx'
 import { formatUtc } from '#app/utils/misc.ts'
+import { can } from '#shared/authz/permissions.ts'
 
 export async function loader({ context, request }: Route.LoaderArgs) {
-	authorize(context, 'audit:read')
-	const query = AuditQuerySchema.parse(Object.fromEntries(new URL(request.url).searchParams))
-	return { query, ...(await listAuditEvents(db, query)) }
+	const actor = authorize(context, 'audit:read')
+	const url = new URL(request.url)
+	const query = AuditQuerySchema.parse(Object.fromEntries(url.searchParams))
+	const canVerify = can(actor, 'user:manage')
+	const verification = canVerify && url.searchParams.get('verify') === '1' ? await verifyAuditChain(db) : null
+	const exportQuery = new URLSearchParams(url.searchParams)
+	exportQuery.delete('page')
+	exportQuery.delete('verify')
+	return { query, ...(await listAuditEvents(db, query)), canVerify, verification, exportHref: `/audit/export.csv?${exportQuery.toString()}` }
 }
 
 function describeChange(before: unknown, after: unknown): string {
@@ -24,10 +32,36 @@ function describeChange(before: unknown, after: unknown): string {
 }
 
 export default function AuditTrail({ loaderData }: Route.ComponentProps) {
-	const { rows, total, pageCount, query } = loaderData
+	const { rows, total, pageCount, query, canVerify, verification, exportHref } = loaderData
 	return (
 		<>
-			<PageHeader title="Audit trail" description="Every sign-in, change and decision, newest first. Events cannot be changed or removed." />
+			<PageHeader
+				title="Audit trail"
+				description="Every sign-in, change, signature and download, newest first. Events cannot be changed or removed, and each is chained to the one before it by its hash."
+				actions={
+					<>
+						<a href={exportHref} className={buttonVariants({ variant: 'secondary' })} download>Export CSV</a>
+						{canVerify ? (
+							<Form method="get">
+								<input type="hidden" name="verify" value="1" />
+								<button type="submit" className={buttonVariants({ variant: 'secondary' })}>Verify the chain</button>
+							</Form>
+						) : null}
+					</>
+				}
+			/>
+			{verification ? (
+				verification.breaks.length === 0 ? (
+					<p role="status" className="border-good bg-good-soft mb-4 rounded-md border-l-4 px-4 py-3 text-sm" data-testid="chain-result">
+						The chain is intact: all {verification.checked} events match their hashes and links.
+					</p>
+				) : (
+					<div role="alert" className="border-danger bg-danger-soft mb-4 rounded-md border-l-4 px-4 py-3 text-sm" data-testid="chain-result">
+						<p className="font-semibold">The chain is broken at {verification.breaks.length} place{verification.breaks.length === 1 ? '' : 's'} (of {verification.checked} events). Someone changed the trail outside the application; report it to QA.</p>
+						<ul className="mt-1 list-disc pl-5">{verification.breaks.map((item) => <li key={`${item.eventId}-${item.problem}`}>Event {item.eventId}: {item.problem}</li>)}</ul>
+					</div>
+				)
+			) : null}
 			<Form method="get" className="mb-4 flex flex-wrap items-end gap-3">
 				<div>
 					<label htmlFor="audit-actor" className="mb-1 block text-sm font-medium">Who</label>
@@ -36,6 +70,21 @@ export default function AuditTrail({ loaderData }: Route.ComponentProps) {
 				<div>
 					<label htmlFor="audit-action" className="mb-1 block text-sm font-medium">Action starts with</label>
 					<input id="audit-action" name="action" defaultValue={query.action ?? ''} placeholder="e.g. user.sign" className={`${inputClass} w-56`} />
+				</div>
+				<div>
+					<label htmlFor="audit-entity" className="mb-1 block text-sm font-medium">About</label>
+					<select id="audit-entity" name="entityType" defaultValue={query.entityType ?? ''} className={`${inputClass} w-48`}>
+						<option value="">Anything</option>
+						{['user', 'material', 'spectrum', 'specification', 'spec-version', 'dossier', 'audit'].map((type) => <option key={type} value={type}>{type}</option>)}
+					</select>
+				</div>
+				<div>
+					<label htmlFor="audit-since" className="mb-1 block text-sm font-medium">From</label>
+					<input id="audit-since" type="date" name="since" defaultValue={query.since ?? ''} className={`${inputClass} w-40`} />
+				</div>
+				<div>
+					<label htmlFor="audit-until" className="mb-1 block text-sm font-medium">To</label>
+					<input id="audit-until" type="date" name="until" defaultValue={query.until ?? ''} className={`${inputClass} w-40`} />
 				</div>
 				<button type="submit" className={buttonVariants({ variant: 'secondary' })}>Apply</button>
 			</Form>

@@ -7,9 +7,16 @@ import type { Route } from './+types/$specId.versions.$versionId'
 import { authorize } from '#app/.server/context.ts'
 import { db } from '#app/.server/db/client.ts'
 import { getVersionWorkspace, listSpectrumChoices } from '#app/.server/queries/specifications.ts'
+import { reauthenticate } from '#app/.server/auth.ts'
+import { getWorkflowView } from '#app/.server/queries/workflow.ts'
+import { acceptRedlineSuggestion, addRedline, replyToRedline, setRedlineStatus } from '#app/.server/services/redlines.ts'
+import { applyDueEffectiveDates, takeWorkflowStep } from '#app/.server/services/spec-workflow.ts'
+import { RedlinePanel } from '#app/components/redline-panel.tsx'
+import { SignatureManifest, WorkflowActions } from '#app/components/workflow-panel.tsx'
+import type { WorkflowEvent } from '#shared/workflow/spec-version-machine.ts'
 import { acceptThresholdSuggestion, BandTableInvalid, recordComparison, recordSpecificity, saveDraft, startNextVersion } from '#app/.server/services/specifications.ts'
 import { redirectWithToast } from '#app/.server/toast.ts'
-import { BandTableEditor } from '#app/components/band-table-editor.tsx'
+import { BandTableEditor, BandTableView } from '#app/components/band-table-editor.tsx'
 import { CautionNote } from '#app/components/caution-note.tsx'
 import { EvidenceList } from '#app/components/evidence-list.tsx'
 import { Field, FormErrors, inputClass, TextareaField } from '#app/components/forms.tsx'
@@ -31,17 +38,115 @@ const EvidenceActionSchema = z.discriminatedUnion('intent', [
 	z.object({ intent: z.literal('new-version'), changeReason: z.string({ message: 'Say why a new version is needed' }).trim().min(10, 'Say why a new version is needed (at least 10 characters)').max(2000) }),
 ])
 
-export async function loader({ context, params }: Route.LoaderArgs) {
+const WorkflowActionSchema = z.discriminatedUnion('intent', [
+	z.object({
+		intent: z.literal('workflow'),
+		step: z.enum(['submit', 'withdraw', 'reject', 'sign-reviewed', 'sign-approved', 'retire']),
+		reason: z.string().trim().max(2000).optional(),
+		password: z.string().max(200).optional(),
+		effectiveFrom: z.string().max(40).optional(),
+		timeZoneOffset: z.coerce.number().int().min(-900).max(900).optional(),
+	}),
+	z.object({
+		intent: z.literal('redline-add'),
+		anchor: z.string().min(1).max(80),
+		body: z.string({ message: 'Write the comment' }).trim().min(3, 'Write the comment').max(5000),
+		suggestedText: z.string().max(10000).optional(),
+	}),
+	z.object({ intent: z.literal('redline-reply'), redlineId: z.string().uuid(), body: z.string({ message: 'Write the reply' }).trim().min(1).max(5000) }),
+	z.object({ intent: z.enum(['redline-resolve', 'redline-reopen', 'redline-accept']), redlineId: z.string().uuid() }),
+])
+
+/** A datetime-local value typed in the browser, with the browser's UTC offset, as an instant. */
+function parseLocalDateTime(value: string | undefined, offsetMinutes: number | undefined, now: Date): Date {
+	if (!value) return now
+	const parsed = Date.parse(`${value}Z`)
+	return Number.isNaN(parsed) ? new Date(Number.NaN) : new Date(parsed + (offsetMinutes ?? 0) * 60_000)
+}
+
+export async function loader({ context, params, request }: Route.LoaderArgs) {
 	const actor = authorize(context, 'spec:read')
+	const now = new Date()
+	await applyDueEffectiveDates(db, now)
 	const workspace = await getVersionWorkspace(db, params.specId, params.versionId)
 	if (!workspace) throw data({ message: 'There is no such version of this specification.' }, { status: 404 })
 	const canEdit = can(actor, 'spec:edit') && workspace.version.state === 'draft'
 	const spectra = can(actor, 'spec:edit') ? await listSpectrumChoices(db) : []
-	return { ...workspace, spectra, canEdit, canStartVersion: can(actor, 'spec:edit') }
+	const workflow = await getWorkflowView(db, params.versionId, actor, now)
+	const verify = new URL(request.url).searchParams.get('verify') === '1'
+	const isEditor = workspace.version.editorIds.includes(actor.id)
+	return {
+		...workspace,
+		spectra,
+		canEdit,
+		canStartVersion: can(actor, 'spec:edit'),
+		workflow,
+		verified: verify,
+		canRedline: can(actor, 'spec-version:sign') && workspace.version.state === 'in_review' && !isEditor,
+		canAcceptRedline: canEdit,
+		canDiscussRedlines: (can(actor, 'spec:edit') || can(actor, 'spec-version:sign')) && (workspace.version.state === 'draft' || workspace.version.state === 'in_review'),
+	}
 }
+
+async function workflowAction(request: Request, context: Route.ActionArgs['context'], versionId: string, formData: FormData) {
+	const submission = parseWithZod(formData, { schema: WorkflowActionSchema })
+	if (submission.status !== 'success') return data({ result: submission.reply(), bandProblems: [] as Array<BandRowProblem> }, { status: 400 })
+	const value = submission.value
+	const now = new Date()
+	const fail = (error: { message: string; status: number }) =>
+		data({ result: submission.reply({ formErrors: [error.message], hideFields: ['password'] }), bandProblems: [] as Array<BandRowProblem> }, { status: error.status })
+	if (value.intent === 'workflow') {
+		const signing = value.step === 'sign-reviewed' || value.step === 'sign-approved'
+		const actor = authorize(context, value.step === 'submit' || value.step === 'withdraw' ? 'spec:edit' : 'spec-version:sign')
+		if (signing) {
+			const reauthenticated = await reauthenticate(actor.id, value.password ?? '')
+			if (!reauthenticated.ok) return fail(reauthenticated.error)
+		}
+		const event: WorkflowEvent =
+			value.step === 'sign-reviewed'
+				? { type: 'sign', meaning: 'reviewed', reauthenticated: true }
+				: value.step === 'sign-approved'
+					? { type: 'sign', meaning: 'approved', reauthenticated: true, effectiveFrom: parseLocalDateTime(value.effectiveFrom, value.timeZoneOffset, now) }
+					: value.step === 'reject' || value.step === 'retire'
+						? { type: value.step, reason: value.reason ?? '' }
+						: value.step === 'withdraw'
+							? { type: 'withdraw', reason: value.reason }
+							: { type: 'submit' }
+		const outcome = await takeWorkflowStep(db, { actor, versionId, event, now })
+		if (!outcome.ok) return fail(outcome.error)
+		return redirectWithToast(new URL(request.url).pathname, { kind: 'success', title: `${STEP_DONE[value.step]} · ${VERSION_STATE_LABELS[outcome.value.state]}` })
+	}
+	if (value.intent === 'redline-add') {
+		const actor = authorize(context, 'spec-version:sign')
+		const outcome = await addRedline(db, { actor, versionId, anchor: value.anchor, body: value.body, suggestedText: value.suggestedText?.trim() ? value.suggestedText : null, now })
+		if (!outcome.ok) return fail(outcome.error)
+		return redirectWithToast(`${new URL(request.url).pathname}#redlines-heading`, { kind: 'success', title: 'Redline added' })
+	}
+	const actor = authorize(context, value.intent === 'redline-accept' ? 'spec:edit' : 'spec:read')
+	const outcome =
+		value.intent === 'redline-reply'
+			? await replyToRedline(db, { actor, redlineId: value.redlineId, body: value.body, now })
+			: value.intent === 'redline-accept'
+				? await acceptRedlineSuggestion(db, { actor, redlineId: value.redlineId, now })
+				: await setRedlineStatus(db, { actor, redlineId: value.redlineId, status: value.intent === 'redline-resolve' ? 'resolved' : 'open', resolution: null, now })
+	if (!outcome.ok) return fail(outcome.error)
+	const titles = { 'redline-reply': 'Reply added', 'redline-accept': 'Suggestion accepted into the draft', 'redline-resolve': 'Redline resolved', 'redline-reopen': 'Redline reopened' } as const
+	return redirectWithToast(`${new URL(request.url).pathname}#redlines-heading`, { kind: 'success', title: titles[value.intent] })
+}
+
+const STEP_DONE = {
+	submit: 'Submitted for review',
+	withdraw: 'Withdrawn from review',
+	reject: 'Returned to draft',
+	'sign-reviewed': 'Signed as reviewed',
+	'sign-approved': 'Signed as approved',
+	retire: 'Retired',
+} as const
 
 export async function action({ request, context, params }: Route.ActionArgs) {
 	const formData = await request.formData()
+	const intent = String(formData.get('intent') ?? '')
+	if (intent === 'workflow' || intent.startsWith('redline-')) return workflowAction(request, context, params.versionId, formData)
 	const actor = authorize(context, 'spec:edit')
 	const base = { actor, versionId: params.versionId, now: new Date() }
 	if (formData.get('intent') === 'save') {
@@ -75,7 +180,7 @@ export async function action({ request, context, params }: Route.ActionArgs) {
 }
 
 export default function VersionWorkspace({ loaderData, actionData }: Route.ComponentProps) {
-	const { specification, version, content, reference, versions, evidence, spectra, canEdit, canStartVersion } = loaderData
+	const { specification, version, content, reference, versions, evidence, spectra, canEdit, canStartVersion, workflow, verified } = loaderData
 	const base = `/specifications/${specification.id}/versions/${version.id}`
 	const viewerBands = content.bands.map((row) => ({ position: row.position, tolerance: row.tolerance ?? undefined, label: String(Math.round(row.position)) }))
 	return (
@@ -96,6 +201,17 @@ export default function VersionWorkspace({ loaderData, actionData }: Route.Compo
 					<p className="border-caution bg-caution-soft mt-3 rounded-md border-l-4 px-3 py-2 text-sm">Returned to draft: {version.lastRejectionReason}</p>
 				) : null}
 			</header>
+			{workflow ? (
+				<div className="mb-6 grid gap-4 xl:grid-cols-2">
+					<WorkflowActions actions={workflow.actions} statements={workflow.statements} errors={actionData?.result?.error?.[''] ?? undefined} />
+					<SignatureManifest signatures={workflow.signatures} verified={verified} />
+				</div>
+			) : null}
+			{workflow && (workflow.redlines.length > 0 || loaderData.canRedline) ? (
+				<div className="mb-6">
+					<RedlinePanel threads={workflow.redlines} bands={content.bands} canAdd={loaderData.canRedline} canAccept={loaderData.canAcceptRedline} canDiscuss={loaderData.canDiscussRedlines} />
+				</div>
+			) : null}
 			{canEdit ? (
 				<DraftEditor key={version.revision} loaderData={loaderData} actionResult={actionData} base={base} />
 			) : (
@@ -125,6 +241,11 @@ export default function VersionWorkspace({ loaderData, actionData }: Route.Compo
 							</Link>
 							<VersionStateBadge state={item.state} />
 							<span className="text-ink-soft">{item.changeReason ?? 'First version'}</span>
+							{item.versionNumber > 1 ? (
+								<Link to={`/specifications/${specification.id}/changes?to=${item.id}`} className="text-accent text-xs underline underline-offset-4">
+									Changes from version {item.versionNumber - 1}
+								</Link>
+							) : null}
 							<span className="text-ink-faint ml-auto tabular-nums">{item.effectiveAt ? `effective ${formatUtc(item.effectiveAt)}` : `saved ${formatUtc(item.updatedAt)}`}</span>
 						</li>
 					))}
@@ -221,7 +342,7 @@ function DraftEditor({ loaderData, actionResult, base }: { loaderData: Workspace
 			</section>
 			<section className="bg-sheet border-rule rounded-lg border p-5">
 				<FormErrors id={fields.bands.errorId} errors={bandErrors(form.allErrors)} />
-				<BandTableEditor name={fields.bands.name} initialRows={initialRows} problems={actionResult?.bandProblems ?? []} suggestionsUrl={`${base}/band-suggestions`} readOnly={false} />
+				<BandTableEditor name={fields.bands.name} initialRows={initialRows} problems={actionResult?.bandProblems ?? []} suggestionsUrl={`${base}/band-suggestions`} />
 			</section>
 			<section className="bg-sheet border-rule rounded-lg border p-5">
 				<TextareaField label="Notes" errors={fields.notes.errors} textareaProps={getTextareaProps(fields.notes)} />
@@ -277,7 +398,7 @@ function ContentView({ content, referenceName, changeReason }: { content: Worksp
 				</dl>
 			</section>
 			<section className="bg-sheet border-rule rounded-lg border p-5">
-				<BandTableEditor name="bands" initialRows={content.bands} problems={[]} suggestionsUrl="" readOnly />
+				<BandTableView rows={content.bands} />
 			</section>
 		</div>
 	)

@@ -110,12 +110,12 @@ function readyFor(action: WorkflowAction, state: VersionState): VersionSnapshot 
 const ALLOWED: Record<WorkflowAction, Partial<Record<VersionState, VersionState>>> = {
 	submit: { draft: 'in_review' },
 	withdraw: { in_review: 'draft' },
-	reject: { in_review: 'draft', approved: 'draft' },
+	reject: { in_review: 'draft' },
 	'sign-reviewed': { in_review: 'in_review' },
 	'sign-approved': { in_review: 'approved' },
 	'make-effective': { approved: 'effective' },
 	supersede: { effective: 'superseded' },
-	retire: { effective: 'retired' },
+	retire: { approved: 'retired', effective: 'retired' },
 }
 
 const EVERY_STEP_IN_EVERY_STATE = WORKFLOW_ACTIONS.flatMap((action) =>
@@ -144,11 +144,11 @@ const MAY: Array<[WorkflowAction, VersionState, Array<Who>]> = [
 	['submit', 'draft', ['author']],
 	['withdraw', 'in_review', ['author']],
 	['reject', 'in_review', ['reviewer', 'approver']],
-	['reject', 'approved', ['approver']],
 	['sign-reviewed', 'in_review', ['reviewer']],
 	['sign-approved', 'in_review', ['approver']],
 	['make-effective', 'approved', ['system']],
 	['supersede', 'effective', ['system']],
+	['retire', 'approved', ['approver']],
 	['retire', 'effective', ['approver']],
 ]
 
@@ -326,17 +326,13 @@ test('[WF-004] rejection needs a reason of at least 10 characters and returns th
 	})
 })
 
-test('[WF-005] rejecting an approved version voids both signatures and the effective date; only an approver may', () => {
-	// PRODUCT.md §2 (the approver "can reject back to draft with a reason"); product rule, no published source.
+test('[WF-005] an approved version is locked: it cannot be rejected to draft, only retired by an approver', () => {
+	// 21 CFR 11.10(c)/(e) records protected once approved — FACTS.md §3.1; the database lock enforces it too.
 	const approved = version('approved', { effectiveFrom: new Date(NOW.getTime() + 24 * HOUR) })
-	const result = decideTransition(approved, eventFor('reject'), person('ines', 'approver'), NOW)
-	expect(result.ok && result.value.next).toBe('draft')
-	expect(result.ok && result.value.effects.map((effect) => effect.kind)).toEqual([
-		'void-signatures',
-		'clear-effective-from',
-		'notify',
-	])
-	expect(decideTransition(approved, eventFor('reject'), person('rex', 'reviewer'), NOW)).toMatchObject({
+	expect(decideTransition(approved, eventFor('reject'), person('ines', 'approver'), NOW)).toMatchObject({ ok: false })
+	const retired = decideTransition(approved, eventFor('retire'), person('ines', 'approver'), NOW)
+	expect(retired.ok && retired.value.next).toBe('retired')
+	expect(decideTransition(approved, eventFor('retire'), person('rex', 'reviewer'), NOW)).toMatchObject({
 		ok: false,
 		error: { code: 'role' },
 	})
@@ -597,4 +593,12 @@ test('[SIG-011] the manifestation shows printed name, meaning, and date and time
 	expect(signatureManifestation({ meaning: 'reviewed', signedAt, timeZone: 'UTC' }, subject).signedAtLocal).toBe(
 		'2026-03-02 14:05:09 UTC',
 	)
+})
+
+test('[WF-020] someone who edited the draft counts as its author: they may not review or approve it', () => {
+	// PRODUCT.md §2 segregation of duties; 21 CFR 11.10(g) authority checks — FACTS.md §3.1.
+	const coEditor = person('cora', 'reviewer', 'approver')
+	const snapshot = version('in_review', { coAuthorIds: [coEditor.id] })
+	expect(decideTransition(snapshot, eventFor('sign-reviewed'), coEditor, NOW)).toMatchObject({ ok: false })
+	expect(decideTransition(snapshot, eventFor('sign-reviewed'), person('rex', 'reviewer'), NOW)).toMatchObject({ ok: true })
 })
