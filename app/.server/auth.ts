@@ -95,9 +95,16 @@ function createAuth() {
  * cannot sign.
  */
 export async function reauthenticate(userId: string, password: string): Promise<Result<true, DomainError>> {
-	const [user] = await db.select().from(users).where(eq(users.id, userId))
-	if (!user) return err(new DomainError('Your account was not found.', 401))
-	const gate = decideSignInGate(user, new Date())
+	const [found] = await db.select().from(users).where(eq(users.id, userId))
+	if (!found) return err(new DomainError('Your account was not found.', 401))
+	const now = new Date()
+	let user = found
+	if (user.lockedUntil && user.lockedUntil <= now) {
+		// A lock that has run out starts the count afresh, as at sign-in.
+		await db.update(users).set({ failedSignIns: 0, lockedUntil: null }).where(eq(users.id, userId))
+		user = { ...user, failedSignIns: 0, lockedUntil: null }
+	}
+	const gate = decideSignInGate(user, now)
 	if (!gate.ok) return err(new DomainError(gate.error, 403))
 	const [account] = await db
 		.select({ password: accounts.password })
@@ -106,14 +113,20 @@ export async function reauthenticate(userId: string, password: string): Promise<
 	const matches = account?.password ? await verifyPassword({ hash: account.password, password }) : false
 	if (!matches) {
 		await recordFailedSignIn(user.email, null, 'signature')
-		return err(new DomainError('The password is not right; nothing was signed. Repeated failures lock your account.', 401))
+		return err(
+			new DomainError('The password is not right; nothing was signed. Repeated failures lock your account.', 401),
+		)
 	}
 	if (user.failedSignIns > 0) await db.update(users).set({ failedSignIns: 0 }).where(eq(users.id, userId))
 	return ok(true)
 }
 
 /** Counts a failed password against the account and locks it at the threshold. */
-async function recordFailedSignIn(email: string, ipAddress: string | null, during: 'sign-in' | 'signature' = 'sign-in'): Promise<void> {
+async function recordFailedSignIn(
+	email: string,
+	ipAddress: string | null,
+	during: 'sign-in' | 'signature' = 'sign-in',
+): Promise<void> {
 	const settings = env()
 	await db.transaction(async (tx) => {
 		const [user] = await tx
@@ -134,7 +147,9 @@ async function recordFailedSignIn(email: string, ipAddress: string | null, durin
 			action: 'user.sign-in-failed',
 			entityType: 'user',
 			entityId: user?.id ?? null,
-			after: user ? { failedSignIns: user.failedSignIns, lockedUntil: lockedUntil?.toISOString() ?? null, during } : { during },
+			after: user
+				? { failedSignIns: user.failedSignIns, lockedUntil: lockedUntil?.toISOString() ?? null, during }
+				: { during },
 			ipAddress,
 		})
 		if (user && lockedUntil) {

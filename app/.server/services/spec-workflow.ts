@@ -224,8 +224,14 @@ export async function applyDueEffectiveDates(db: Db, now: Date): Promise<number>
 		.where(and(eq(specVersions.state, 'approved'), lte(specVersions.effectiveFrom, now)))
 	let applied = 0
 	for (const version of due) {
-		const outcome = await takeWorkflowStep(db, { actor: SYSTEM, versionId: version.id, event: { type: 'make-effective' }, now })
-		if (outcome.ok) applied += 1
+		try {
+			const outcome = await takeWorkflowStep(db, { actor: SYSTEM, versionId: version.id, event: { type: 'make-effective' }, now })
+			if (outcome.ok) applied += 1
+			else console.error(`effective date of version ${version.id} not applied: ${outcome.error.message}`)
+		} catch (error) {
+			// One failing version must not hold back the others; the next run tries it again.
+			console.error(`effective date of version ${version.id} failed:`, error)
+		}
 	}
 	return applied
 }

@@ -8,8 +8,17 @@ import { bytesToFloats, loadSpectrum } from '#app/.server/services/spectra.ts'
 import type { Actor } from '#shared/authz/permissions.ts'
 import { Conflict, DomainError, err, NotFound, ok, type Result } from '#shared/errors.ts'
 import { type BandRowProblem, validateBandTable } from '#shared/specs/band-table.ts'
-import { DEFAULT_DOCUMENT_NUMBER_PATTERN, formatDocumentNumber, isValidDocumentNumberPattern } from '#shared/specs/document-number.ts'
-import { emptyVersionContent, type SpecVersionContent, SpecVersionContentSchema, toAcceptanceCriteria } from '#shared/specs/version-content.ts'
+import {
+	DEFAULT_DOCUMENT_NUMBER_PATTERN,
+	formatDocumentNumber,
+	isValidDocumentNumberPattern,
+} from '#shared/specs/document-number.ts'
+import {
+	emptyVersionContent,
+	type SpecVersionContent,
+	SpecVersionContentSchema,
+	toAcceptanceCriteria,
+} from '#shared/specs/version-content.ts'
 import { compareSpectra } from '#shared/spectra/compare.ts'
 import { AcceptanceCriteriaSchema } from '#shared/spectra/criteria.ts'
 import { ENGINE_VERSION } from '#shared/spectra/preprocess.ts'
@@ -20,7 +29,10 @@ const auditActor = (actor: Actor) => ({ id: actor.id, label: actor.email })
 /** The band table breaks a rule; `problems` say which row and why. */
 export class BandTableInvalid extends DomainError {
 	constructor(readonly problems: Array<BandRowProblem>) {
-		super(`The band table has ${problems.length} problem${problems.length === 1 ? '' : 's'}: ${problems.map((problem) => problem.message).join(' ')}`, 422)
+		super(
+			`The band table has ${problems.length} problem${problems.length === 1 ? '' : 's'}: ${problems.map((problem) => problem.message).join(' ')}`,
+			422,
+		)
 	}
 }
 
@@ -39,13 +51,29 @@ export async function createSpecification(
 	return db.transaction(async (tx) => {
 		const [material] = await tx.select({ id: materials.id }).from(materials).where(eq(materials.id, input.materialId))
 		if (!material) return err(new NotFound('The material'))
-		const [{ next } = { next: 0 }] = await tx.execute<{ next: string }>(sql`select nextval('specification_number_seq')::text as next`)
-		const documentNumber = formatDocumentNumber(input.pattern ?? documentNumberPattern(), Number(next), input.now.getUTCFullYear())
-		const [taken] = await tx.select({ id: specifications.id }).from(specifications).where(eq(specifications.documentNumber, documentNumber))
-		if (taken) return err(new Conflict(`The document number ${documentNumber} is already used; check the numbering pattern.`))
+		const [{ next } = { next: 0 }] = await tx.execute<{ next: string }>(
+			sql`select nextval('specification_number_seq')::text as next`,
+		)
+		const documentNumber = formatDocumentNumber(
+			input.pattern ?? documentNumberPattern(),
+			Number(next),
+			input.now.getUTCFullYear(),
+		)
+		const [taken] = await tx
+			.select({ id: specifications.id })
+			.from(specifications)
+			.where(eq(specifications.documentNumber, documentNumber))
+		if (taken)
+			return err(new Conflict(`The document number ${documentNumber} is already used; check the numbering pattern.`))
 		const [specification] = await tx
 			.insert(specifications)
-			.values({ documentNumber, title: input.title, materialId: input.materialId, ownerId: input.actor.id, createdAt: input.now })
+			.values({
+				documentNumber,
+				title: input.title,
+				materialId: input.materialId,
+				ownerId: input.actor.id,
+				createdAt: input.now,
+			})
 			.returning({ id: specifications.id })
 		const [version] = await tx
 			.insert(specVersions)
@@ -77,7 +105,9 @@ export function parseContent(raw: unknown): SpecVersionContent {
 }
 
 function changedTopLevel(before: SpecVersionContent, after: SpecVersionContent) {
-	const keys = (Object.keys(after) as Array<keyof SpecVersionContent>).filter((key) => JSON.stringify(before[key]) !== JSON.stringify(after[key]))
+	const keys = (Object.keys(after) as Array<keyof SpecVersionContent>).filter(
+		(key) => JSON.stringify(before[key]) !== JSON.stringify(after[key]),
+	)
 	return {
 		before: Object.fromEntries(keys.map((key) => [key, before[key]])),
 		after: Object.fromEntries(keys.map((key) => [key, after[key]])),
@@ -91,13 +121,24 @@ function changedTopLevel(before: SpecVersionContent, after: SpecVersionContent) 
  */
 export async function saveDraft(
 	db: Db,
-	input: { actor: Actor; versionId: string; revision: number; content: SpecVersionContent; changeReason: string | null; now: Date },
+	input: {
+		actor: Actor
+		versionId: string
+		revision: number
+		content: SpecVersionContent
+		changeReason: string | null
+		now: Date
+	},
 ): Promise<Result<{ revision: number }, DomainError>> {
 	return db.transaction(async (tx) => {
 		const [version] = await tx.select().from(specVersions).where(eq(specVersions.id, input.versionId)).for('update')
 		if (!version) return err(new NotFound('The specification version'))
 		if (version.state !== 'draft') {
-			return err(new Conflict(`Only drafts can be edited. This version is ${version.state.replace('_', ' ')}; start a new version to change it.`))
+			return err(
+				new Conflict(
+					`Only drafts can be edited. This version is ${version.state.replace('_', ' ')}; start a new version to change it.`,
+				),
+			)
 		}
 		if (version.revision !== input.revision) {
 			return err(
@@ -111,12 +152,18 @@ export async function saveDraft(
 			const [reference] = await tx.select({ id: spectra.id }).from(spectra).where(eq(spectra.id, referenceId))
 			if (!reference) return err(new NotFound('The chosen reference spectrum'))
 		}
-		const problems = validateBandTable(input.content.bands, input.content.method, input.content.criteria.defaultBandTolerance)
+		const problems = validateBandTable(
+			input.content.bands,
+			input.content.method,
+			input.content.criteria.defaultBandTolerance,
+		)
 		if (problems.length) return err(new BandTableInvalid(problems))
 		const before = parseContent(version.content)
 		const changes = changedTopLevel(before, input.content)
 		const reasonChanged = (version.changeReason ?? null) !== (input.changeReason ?? null)
-		const editorIds = version.editorIds.includes(input.actor.id) ? version.editorIds : [...version.editorIds, input.actor.id]
+		const editorIds = version.editorIds.includes(input.actor.id)
+			? version.editorIds
+			: [...version.editorIds, input.actor.id]
 		const [saved] = await tx
 			.update(specVersions)
 			.set({
@@ -160,8 +207,15 @@ export async function startNextVersion(
 			.orderBy(desc(specVersions.versionNumber))
 			.for('update')
 		if (versions.length === 0) return err(new NotFound('The specification'))
-		const open = versions.find((version) => version.state === 'draft' || version.state === 'in_review' || version.state === 'approved')
-		if (open) return err(new Conflict(`Version ${open.versionNumber} is still ${open.state.replace('_', ' ')}; finish it before starting another.`))
+		const open = versions.find(
+			(version) => version.state === 'draft' || version.state === 'in_review' || version.state === 'approved',
+		)
+		if (open)
+			return err(
+				new Conflict(
+					`Version ${open.versionNumber} is still ${open.state.replace('_', ' ')}; finish it before starting another.`,
+				),
+			)
 		const source = versions.find((version) => version.state === 'effective') ?? versions[0]!
 		const versionNumber = versions[0]!.versionNumber + 1
 		const [created] = await tx
@@ -196,7 +250,8 @@ async function requireDraftForEvidence(db: Db, versionId: string) {
 	if (!version) return err(new NotFound('The specification version'))
 	if (version.state !== 'draft') return err(new Conflict('Evidence is added while the version is a draft.'))
 	const content = parseContent(version.content)
-	if (!content.referenceSpectrumId) return err(new DomainError('Choose the reference spectrum and save the draft first.', 422))
+	if (!content.referenceSpectrumId)
+		return err(new DomainError('Choose the reference spectrum and save the draft first.', 422))
 	return ok({ version, content, referenceSpectrumId: content.referenceSpectrumId })
 }
 
@@ -207,37 +262,48 @@ export async function recordComparison(
 ): Promise<Result<{ evidenceId: string; verdict: string }, DomainError>> {
 	const draft = await requireDraftForEvidence(db, input.versionId)
 	if (!draft.ok) return draft
-	const [reference, sample] = await Promise.all([loadSpectrum(db, draft.value.referenceSpectrumId), loadSpectrum(db, input.sampleSpectrumId)])
+	const [reference, sample] = await Promise.all([
+		loadSpectrum(db, draft.value.referenceSpectrumId),
+		loadSpectrum(db, input.sampleSpectrumId),
+	])
 	if (!reference) return err(new NotFound('The reference spectrum'))
 	if (!sample) return err(new NotFound('The spectrum to compare'))
 	const criteria = AcceptanceCriteriaSchema.parse(toAcceptanceCriteria(draft.value.content))
 	const comparison = compareSpectra(reference.spectrum, sample.spectrum, criteria)
-	const [row] = await db
-		.insert(evidence)
-		.values({
-			versionId: input.versionId,
-			kind: 'comparison',
-			title: `${sample.fileName} against ${reference.fileName}`,
-			sampleSpectrumId: input.sampleSpectrumId,
-			verdict: comparison.verdict,
-			correlation: comparison.correlation,
-			result: comparison,
-			algorithmVersion: comparison.algorithmVersion,
-			params: comparison.params,
-			inputChecksums: { reference: reference.sha256, sample: sample.sha256 },
-			createdBy: input.actor.id,
-			createdAt: input.now,
+	const id = await db.transaction(async (tx) => {
+		const [row] = await tx
+			.insert(evidence)
+			.values({
+				versionId: input.versionId,
+				kind: 'comparison',
+				title: `${sample.fileName} against ${reference.fileName}`,
+				sampleSpectrumId: input.sampleSpectrumId,
+				verdict: comparison.verdict,
+				correlation: comparison.correlation,
+				result: comparison,
+				algorithmVersion: comparison.algorithmVersion,
+				params: comparison.params,
+				inputChecksums: { reference: reference.sha256, sample: sample.sha256 },
+				createdBy: input.actor.id,
+				createdAt: input.now,
+			})
+			.returning({ id: evidence.id })
+		await recordAudit(tx, {
+			actor: auditActor(input.actor),
+			action: 'evidence.recorded',
+			entityType: 'spec-version',
+			entityId: input.versionId,
+			after: {
+				evidenceId: row!.id,
+				kind: 'comparison',
+				verdict: comparison.verdict,
+				correlation: comparison.correlation,
+			},
+			occurredAt: input.now,
 		})
-		.returning({ id: evidence.id })
-	await recordAudit(db, {
-		actor: auditActor(input.actor),
-		action: 'evidence.recorded',
-		entityType: 'spec-version',
-		entityId: input.versionId,
-		after: { evidenceId: row!.id, kind: 'comparison', verdict: comparison.verdict, correlation: comparison.correlation },
-		occurredAt: input.now,
+		return row!.id
 	})
-	return ok({ evidenceId: row!.id, verdict: comparison.verdict })
+	return ok({ evidenceId: id, verdict: comparison.verdict })
 }
 
 /**
@@ -251,16 +317,30 @@ export async function recordSpecificity(
 ): Promise<Result<{ evidenceId: string; margin: number | null }, DomainError>> {
 	const draft = await requireDraftForEvidence(db, input.versionId)
 	if (!draft.ok) return draft
-	const [specification] = await db.select().from(specifications).where(eq(specifications.id, draft.value.version.specificationId))
+	const [specification] = await db
+		.select()
+		.from(specifications)
+		.where(eq(specifications.id, draft.value.version.specificationId))
 	const rows = await db
-		.select({ id: spectra.id, materialId: spectra.materialId, fileName: spectra.fileName, sha256: spectra.sha256, x: spectra.x, y: spectra.y })
+		.select({
+			id: spectra.id,
+			materialId: spectra.materialId,
+			fileName: spectra.fileName,
+			sha256: spectra.sha256,
+			x: spectra.x,
+			y: spectra.y,
+		})
 		.from(spectra)
 		.where(and(eq(spectra.purpose, 'reference'), sql`${spectra.materialId} is not null`))
 	const target = draft.value.referenceSpectrumId
 	const targetMaterial = specification!.materialId
 	const entries = rows
 		.filter((row) => row.id !== target)
-		.map((row) => ({ id: row.id, material: row.materialId!, spectrum: { x: bytesToFloats(row.x), y: bytesToFloats(row.y) } }))
+		.map((row) => ({
+			id: row.id,
+			material: row.materialId!,
+			spectrum: { x: bytesToFloats(row.x), y: bytesToFloats(row.y) },
+		}))
 	const reference = await loadSpectrum(db, target)
 	if (!reference) return err(new NotFound('The reference spectrum'))
 	entries.unshift({ id: target, material: targetMaterial, spectrum: reference.spectrum })
@@ -272,49 +352,75 @@ export async function recordSpecificity(
 	const query = prepareQuery(library, reference.spectrum)
 	if (!query.ok) return query
 	const scores = scoreLibrary(library, query.value)
-	const replicateScores = [...scores].filter((_, index) => library.materials[index] === targetMaterial && library.ids[index] !== target)
+	const replicateScores = [...scores].filter(
+		(_, index) => library.materials[index] === targetMaterial && library.ids[index] !== target,
+	)
 	const nearest = result.value.nearest
 	const names = new Map(rows.map((row) => [row.id, row.fileName]))
 	const materialNames = new Map(
-		(await db.select({ id: materials.id, code: materials.code, name: materials.name }).from(materials).where(inArray(materials.id, [...new Set(library.materials)]))).map(
-			(material) => [material.id, `${material.code} · ${material.name}`],
-		),
+		(
+			await db
+				.select({ id: materials.id, code: materials.code, name: materials.name })
+				.from(materials)
+				.where(inArray(materials.id, [...new Set(library.materials)]))
+		).map((material) => [material.id, `${material.code} · ${material.name}`]),
 	)
 	const lowestReplicate = replicateScores.length ? Math.min(...replicateScores) : null
-	const suggestion = lowestReplicate !== null && nearest && lowestReplicate > nearest.correlation ? suggestThreshold(lowestReplicate, nearest.correlation) : null
+	const suggestion =
+		lowestReplicate !== null && nearest && lowestReplicate > nearest.correlation
+			? suggestThreshold(lowestReplicate, nearest.correlation)
+			: null
 	const summary = {
 		...result.value,
-		nearest: nearest ? { ...nearest, fileName: names.get(nearest.id) ?? nearest.id, materialName: materialNames.get(nearest.material) ?? nearest.material } : null,
+		nearest: nearest
+			? {
+					...nearest,
+					fileName: names.get(nearest.id) ?? nearest.id,
+					materialName: materialNames.get(nearest.material) ?? nearest.material,
+				}
+			: null,
 		comparedWith: library.count - 1,
 		replicates: replicateScores,
 		suggestion,
 		thinMargin: result.value.margin !== null && result.value.margin < 0.02,
 	}
-	const [row] = await db
-		.insert(evidence)
-		.values({
-			versionId: input.versionId,
-			kind: 'specificity',
-			title: `Specificity against ${summary.comparedWith} other reference spectra`,
-			verdict: result.value.specific ? 'specific' : 'not-specific',
-			correlation: nearest?.correlation ?? null,
-			result: summary,
-			algorithmVersion: ENGINE_VERSION,
-			params: { threshold, exclusionRegions: draft.value.content.criteria.exclusionRegions, algorithm: library.algorithm },
-			inputChecksums: { reference: reference.sha256, library: rows.map((entry) => entry.sha256).sort() },
-			createdBy: input.actor.id,
-			createdAt: input.now,
+	const id = await db.transaction(async (tx) => {
+		const [row] = await tx
+			.insert(evidence)
+			.values({
+				versionId: input.versionId,
+				kind: 'specificity',
+				title: `Specificity against ${summary.comparedWith} other reference spectra`,
+				verdict: result.value.specific ? 'specific' : 'not-specific',
+				correlation: nearest?.correlation ?? null,
+				result: summary,
+				algorithmVersion: ENGINE_VERSION,
+				params: {
+					threshold,
+					exclusionRegions: draft.value.content.criteria.exclusionRegions,
+					algorithm: library.algorithm,
+				},
+				inputChecksums: { reference: reference.sha256, library: rows.map((entry) => entry.sha256).sort() },
+				createdBy: input.actor.id,
+				createdAt: input.now,
+			})
+			.returning({ id: evidence.id })
+		await recordAudit(tx, {
+			actor: auditActor(input.actor),
+			action: 'evidence.recorded',
+			entityType: 'spec-version',
+			entityId: input.versionId,
+			after: {
+				evidenceId: row!.id,
+				kind: 'specificity',
+				margin: result.value.margin,
+				nearest: nearest?.correlation ?? null,
+			},
+			occurredAt: input.now,
 		})
-		.returning({ id: evidence.id })
-	await recordAudit(db, {
-		actor: auditActor(input.actor),
-		action: 'evidence.recorded',
-		entityType: 'spec-version',
-		entityId: input.versionId,
-		after: { evidenceId: row!.id, kind: 'specificity', margin: result.value.margin, nearest: nearest?.correlation ?? null },
-		occurredAt: input.now,
+		return row!.id
 	})
-	return ok({ evidenceId: row!.id, margin: result.value.margin })
+	return ok({ evidenceId: id, margin: result.value.margin })
 }
 
 /**
@@ -325,9 +431,14 @@ export async function acceptThresholdSuggestion(
 	db: Db,
 	input: { actor: Actor; versionId: string; evidenceId: string; now: Date },
 ): Promise<Result<{ revision: number; threshold: number }, DomainError>> {
-	const [record] = await db.select().from(evidence).where(and(eq(evidence.id, input.evidenceId), eq(evidence.versionId, input.versionId)))
+	const [record] = await db
+		.select()
+		.from(evidence)
+		.where(and(eq(evidence.id, input.evidenceId), eq(evidence.versionId, input.versionId)))
 	if (!record || record.kind !== 'specificity') return err(new NotFound('The specificity record'))
-	const suggestion = (record.result as { suggestion?: { threshold: number; lowestReplicate: number; nearestNonTarget: number } | null }).suggestion
+	const suggestion = (
+		record.result as { suggestion?: { threshold: number; lowestReplicate: number; nearestNonTarget: number } | null }
+	).suggestion
 	if (!suggestion) return err(new DomainError('This record has no suggested threshold.', 422))
 	const [version] = await db.select().from(specVersions).where(eq(specVersions.id, input.versionId))
 	if (!version) return err(new NotFound('The specification version'))
@@ -338,10 +449,19 @@ export async function acceptThresholdSuggestion(
 		criteria: {
 			...content.criteria,
 			minCorrelation: suggestion.threshold,
-			thresholdJustification: content.criteria.thresholdJustification ? `${content.criteria.thresholdJustification}\n${justification}` : justification,
+			thresholdJustification: content.criteria.thresholdJustification
+				? `${content.criteria.thresholdJustification}\n${justification}`
+				: justification,
 		},
 	}
-	const saved = await saveDraft(db, { actor: input.actor, versionId: input.versionId, revision: version.revision, content: next, changeReason: version.changeReason, now: input.now })
+	const saved = await saveDraft(db, {
+		actor: input.actor,
+		versionId: input.versionId,
+		revision: version.revision,
+		content: next,
+		changeReason: version.changeReason,
+		now: input.now,
+	})
 	if (!saved.ok) return saved
 	return ok({ revision: saved.value.revision, threshold: suggestion.threshold })
 }
@@ -361,5 +481,10 @@ export function suggestThreshold(lowestReplicate: number, nearestNonTarget: numb
 	const ceiling = lowestReplicate - 0.005
 	const raised = midpoint < THRESHOLD_GUIDANCE_FLOOR && THRESHOLD_GUIDANCE_FLOOR <= ceiling
 	const threshold = raised ? THRESHOLD_GUIDANCE_FLOOR : midpoint
-	return { threshold: Math.round(threshold * 1000) / 1000, lowestReplicate, nearestNonTarget, rule: raised ? ('guidance-floor' as const) : ('midpoint' as const) }
+	return {
+		threshold: Math.round(threshold * 1000) / 1000,
+		lowestReplicate,
+		nearestNonTarget,
+		rule: raised ? ('guidance-floor' as const) : ('midpoint' as const),
+	}
 }

@@ -1,0 +1,35 @@
+import { index, integer, pgEnum, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core'
+import { users } from './auth.ts'
+import { specVersions, versionStateEnum } from './specifications.ts'
+import { bytea } from './types.ts'
+
+export const DOSSIER_FORMATS = ['pdf', 'docx'] as const
+export const dossierFormatEnum = pgEnum('dossier_format', DOSSIER_FORMATS)
+
+/**
+ * A rendered dossier of a signed version, kept byte for byte: rendered once, served identical at every download,
+ * and findable by its SHA-256 ("verify a copy"). Records which controlled template made it. A trigger refuses
+ * UPDATE and DELETE.
+ */
+export const dossiers = pgTable(
+	'dossiers',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		versionId: uuid()
+			.notNull()
+			.references(() => specVersions.id),
+		format: dossierFormatEnum().notNull(),
+		/** The version's state when rendered: the cover and page marks show it, so each state has its own dossier. */
+		versionState: versionStateEnum().notNull(),
+		sha256: text().notNull(),
+		byteSize: integer().notNull(),
+		bytes: bytea().notNull(),
+		templateId: text().notNull(),
+		templateVersion: text().notNull(),
+		templateSha256: text().notNull(),
+		controlledCopyNumber: text().notNull(),
+		renderedAt: timestamp({ withTimezone: true }).notNull(),
+		renderedBy: text().references(() => users.id),
+	},
+	(table) => [unique().on(table.versionId, table.format, table.versionState), index().on(table.sha256)],
+)
