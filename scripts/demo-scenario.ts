@@ -5,6 +5,7 @@ import { SYSTEM_ACTOR } from '#app/.server/services/audit.ts'
 import { createMaterial } from '#app/.server/services/materials.ts'
 import { createUser } from '#app/.server/services/users.ts'
 import { specVersions } from '#app/.server/db/schema/specifications.ts'
+import { getDossier } from '#app/.server/services/dossiers.ts'
 import { addRedline } from '#app/.server/services/redlines.ts'
 import { applyDueEffectiveDates, takeWorkflowStep } from '#app/.server/services/spec-workflow.ts'
 import { createSpecification, parseContent, recordComparison, recordSpecificity, saveDraft, startNextVersion } from '#app/.server/services/specifications.ts'
@@ -192,6 +193,14 @@ async function seedLibraryAndSpecifications(
 	await draftWith('RM-0101', 'Acetylsalicylic acid', aspirin.versionId, daysBefore(now, 9), (content) => content)
 	must(await takeWorkflowStep(db, { actor: author, versionId: aspirin.versionId, event: { type: 'submit' }, now: daysBefore(now, 8) }))
 	must(await addRedline(db, { actor: reviewer, versionId: aspirin.versionId, anchor: 'method.samplePreparation', body: 'Acetylsalicylic acid hydrolyses in moist air: say that the sample is measured within 10 minutes of opening the container.', suggestedText: 'Open the container in the sampling booth and measure within 10 minutes. Place a small amount of the sample on the diamond crystal, apply the pressure clamp until the strongest band reads about 0.5–1.0 absorbance, record against an air background taken within the previous 30 minutes.', now: daysBefore(now, 7) }))
+
+	// The controlled dossiers of the signed versions, stored as the lab would have issued them.
+	for (const versionId of [paracetamol.versionId, second.versionId, ipa.versionId]) {
+		for (const format of ['pdf', 'docx'] as const) {
+			const file = await getDossier(db, { actor: null, versionId, format, now, purpose: 'seed' })
+			if (!file) throw new Error(`demo dossier of ${versionId} was not rendered`)
+		}
+	}
 
 	// 4. Ethyl acetate: a draft in progress.
 	const ethylAcetate = must(await createSpecification(db, { actor: author, materialId: lab.materialIds.get('RM-0107')!, title: 'Identification of ethyl acetate by ATR-FTIR', now: daysBefore(now, 3), pattern }))

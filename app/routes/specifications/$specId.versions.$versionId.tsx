@@ -18,6 +18,7 @@ import { acceptThresholdSuggestion, BandTableInvalid, recordComparison, recordSp
 import { redirectWithToast } from '#app/.server/toast.ts'
 import { BandTableEditor, BandTableView } from '#app/components/band-table-editor.tsx'
 import { CautionNote } from '#app/components/caution-note.tsx'
+import { DossierPanel } from '#app/components/dossier-panel.tsx'
 import { EvidenceList } from '#app/components/evidence-list.tsx'
 import { Field, FormErrors, inputClass, TextareaField } from '#app/components/forms.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
@@ -231,6 +232,9 @@ export default function VersionWorkspace({ loaderData, actionData }: Route.Compo
 				{canEdit ? <EvidenceForms spectra={spectra} hasReference={Boolean(content.referenceSpectrumId)} actionResult={actionData} /> : null}
 				<EvidenceList canAcceptThreshold={canEdit} items={evidence} referenceId={reference?.id ?? null} referenceName={reference?.fileName ?? null} bands={viewerBands} exclusionRegions={content.criteria.exclusionRegions} />
 			</section>
+			<div className="mt-8">
+				<DossierPanel base={base} stored={['approved', 'effective', 'superseded', 'retired'].includes(version.state)} />
+			</div>
 			<section aria-labelledby="history-heading" className="mt-8">
 				<h2 id="history-heading" className="mb-2 text-lg font-bold">Versions</h2>
 				<ol className="bg-sheet border-rule divide-rule divide-y rounded-lg border text-sm">
