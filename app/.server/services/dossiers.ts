@@ -4,8 +4,8 @@ import { auditEvents } from '#app/.server/db/schema/audit.ts'
 import { dossiers } from '#app/.server/db/schema/dossiers.ts'
 import { materials } from '#app/.server/db/schema/materials.ts'
 import { evidence, signatures, specifications, specVersions } from '#app/.server/db/schema/specifications.ts'
-import { type DossierFormat, renderDossier } from '#app/.server/render/dossier.ts'
-import { type DocumentTemplate, loadTemplate, templateDir } from '#app/.server/render/template.ts'
+import type { DossierFormat } from '#app/.server/render/dossier.ts'
+import { renderDossierOffThread } from '#app/.server/render/render-pool.ts'
 import { recordAudit } from '#app/.server/services/audit.ts'
 import { publicBaseUrl } from '#app/.server/services/notifications.ts'
 import { versionContentHash } from '#app/.server/services/spec-workflow.ts'
@@ -20,13 +20,6 @@ import { signatureManifestation } from '#shared/workflow/spec-version-machine.ts
 
 /** States whose dossier is a controlled record: rendered once, stored, served byte-identical. */
 const STORED_STATES = new Set(['approved', 'effective', 'superseded', 'retired'])
-
-let templatePromise: Promise<DocumentTemplate> | null = null
-/** The controlled dossier template shipped under templates/dossier (loaded and hashed once per process). */
-export function dossierTemplate(): Promise<DocumentTemplate> {
-	templatePromise ??= loadTemplate(templateDir('dossier'))
-	return templatePromise
-}
 
 function points(spectrum: Spectrum, from: number, to: number): Array<FigurePoint> {
 	const out: Array<FigurePoint> = []
@@ -250,8 +243,8 @@ export async function getDossier(
 	if (!file) {
 		const data = await buildDossierData(db, { versionId: input.versionId, renderedAt: input.now })
 		if (!data) return null
-		const template = await dossierTemplate()
-		const rendered = await renderDossier(data, { format: input.format, template })
+		const rendered = await renderDossierOffThread(data, { format: input.format, templateId: 'dossier' })
+		const template = rendered.template
 		if (STORED_STATES.has(version.state)) {
 			const [inserted] = await db
 				.insert(dossiers)

@@ -1,0 +1,5 @@
+// Starts the dossier renderer thread: registers tsx's loader in this thread, then runs the TypeScript worker.
+import { register } from 'tsx/esm/api'
+
+register()
+await import('./render-worker.ts')
