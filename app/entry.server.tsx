@@ -16,11 +16,13 @@ export default function handleRequest(
 	routerContext: EntryContext,
 	_loadContext: RouterContextProvider,
 ) {
-	if (request.method.toUpperCase() === 'HEAD') return new Response(null, { status: responseStatusCode, headers: responseHeaders })
+	if (request.method.toUpperCase() === 'HEAD')
+		return new Response(null, { status: responseStatusCode, headers: responseHeaders })
 	return new Promise<Response>((resolve, reject) => {
 		let shellRendered = false
 		const userAgent = request.headers.get('user-agent')
-		const readyOption: keyof RenderToPipeableStreamOptions = (userAgent && isbot(userAgent)) || routerContext.isSpaMode ? 'onAllReady' : 'onShellReady'
+		const readyOption: keyof RenderToPipeableStreamOptions =
+			(userAgent && isbot(userAgent)) || routerContext.isSpaMode ? 'onAllReady' : 'onShellReady'
 		let timeoutId: ReturnType<typeof setTimeout> | undefined = setTimeout(() => abort(), streamTimeout + 1000)
 		const { pipe, abort } = renderToPipeableStream(<ServerRouter context={routerContext} url={request.url} />, {
 			[readyOption]() {
@@ -33,7 +35,12 @@ export default function handleRequest(
 					},
 				})
 				responseHeaders.set('Content-Type', 'text/html')
-				resolve(new Response(createReadableStreamFromReadable(body), { headers: responseHeaders, status: responseStatusCode }))
+				resolve(
+					new Response(createReadableStreamFromReadable(body), {
+						headers: responseHeaders,
+						status: responseStatusCode,
+					}),
+				)
 				pipe(body)
 			},
 			onShellError(error: unknown) {

@@ -8,7 +8,14 @@ import { specVersions } from '#app/.server/db/schema/specifications.ts'
 import { getDossier } from '#app/.server/services/dossiers.ts'
 import { addRedline } from '#app/.server/services/redlines.ts'
 import { applyDueEffectiveDates, takeWorkflowStep } from '#app/.server/services/spec-workflow.ts'
-import { createSpecification, parseContent, recordComparison, recordSpecificity, saveDraft, startNextVersion } from '#app/.server/services/specifications.ts'
+import {
+	createSpecification,
+	parseContent,
+	recordComparison,
+	recordSpecificity,
+	saveDraft,
+	startNextVersion,
+} from '#app/.server/services/specifications.ts'
 import { loadSpectrum, storeSpectrumFile } from '#app/.server/services/spectra.ts'
 import { suggestBandRows } from '#app/.server/services/spectrum-analysis.ts'
 import type { Actor, Role } from '#shared/authz/permissions.ts'
@@ -30,16 +37,79 @@ export const DEMO_PEOPLE: Array<{ email: string; name: string; roles: Array<Role
 ]
 
 const DEMO_MATERIALS = [
-	{ code: 'RM-0101', name: 'Acetylsalicylic acid', synonyms: 'Aspirin', casNumber: '50-78-2', formula: 'C9H8O4', grade: 'Ph. Eur.' },
-	{ code: 'RM-0102', name: 'Paracetamol', synonyms: 'Acetaminophen; 4-Hydroxyacetanilide', casNumber: '103-90-2', formula: 'C8H9NO2', grade: 'Ph. Eur.' },
-	{ code: 'RM-0103', name: 'Caffeine, anhydrous', synonyms: '', casNumber: '58-08-2', formula: 'C8H10N4O2', grade: 'USP' },
-	{ code: 'RM-0104', name: 'Lactose monohydrate', synonyms: '', casNumber: '64044-51-5', formula: 'C12H22O11·H2O', grade: 'Ph. Eur.' },
-	{ code: 'RM-0105', name: 'Microcrystalline cellulose', synonyms: 'MCC', casNumber: '9004-34-6', formula: '(C6H10O5)n', grade: 'Ph. Eur.' },
-	{ code: 'RM-0106', name: 'Magnesium stearate', synonyms: '', casNumber: '557-04-0', formula: 'Mg(C18H35O2)2', grade: 'Ph. Eur.' },
-	{ code: 'RM-0107', name: 'Ethyl acetate', synonyms: 'Ethyl ethanoate', casNumber: '141-78-6', formula: 'C4H8O2', grade: 'Ph. Eur.' },
-	{ code: 'RM-0108', name: 'Isopropyl alcohol', synonyms: '2-Propanol; Isopropanol', casNumber: '67-63-0', formula: 'C3H8O', grade: 'Ph. Eur.' },
+	{
+		code: 'RM-0101',
+		name: 'Acetylsalicylic acid',
+		synonyms: 'Aspirin',
+		casNumber: '50-78-2',
+		formula: 'C9H8O4',
+		grade: 'Ph. Eur.',
+	},
+	{
+		code: 'RM-0102',
+		name: 'Paracetamol',
+		synonyms: 'Acetaminophen; 4-Hydroxyacetanilide',
+		casNumber: '103-90-2',
+		formula: 'C8H9NO2',
+		grade: 'Ph. Eur.',
+	},
+	{
+		code: 'RM-0103',
+		name: 'Caffeine, anhydrous',
+		synonyms: '',
+		casNumber: '58-08-2',
+		formula: 'C8H10N4O2',
+		grade: 'USP',
+	},
+	{
+		code: 'RM-0104',
+		name: 'Lactose monohydrate',
+		synonyms: '',
+		casNumber: '64044-51-5',
+		formula: 'C12H22O11·H2O',
+		grade: 'Ph. Eur.',
+	},
+	{
+		code: 'RM-0105',
+		name: 'Microcrystalline cellulose',
+		synonyms: 'MCC',
+		casNumber: '9004-34-6',
+		formula: '(C6H10O5)n',
+		grade: 'Ph. Eur.',
+	},
+	{
+		code: 'RM-0106',
+		name: 'Magnesium stearate',
+		synonyms: '',
+		casNumber: '557-04-0',
+		formula: 'Mg(C18H35O2)2',
+		grade: 'Ph. Eur.',
+	},
+	{
+		code: 'RM-0107',
+		name: 'Ethyl acetate',
+		synonyms: 'Ethyl ethanoate',
+		casNumber: '141-78-6',
+		formula: 'C4H8O2',
+		grade: 'Ph. Eur.',
+	},
+	{
+		code: 'RM-0108',
+		name: 'Isopropyl alcohol',
+		synonyms: '2-Propanol; Isopropanol',
+		casNumber: '67-63-0',
+		formula: 'C3H8O',
+		grade: 'Ph. Eur.',
+	},
 	{ code: 'RM-0109', name: 'Benzaldehyde', synonyms: '', casNumber: '100-52-7', formula: 'C7H6O', grade: 'Technical' },
-	{ code: 'RM-0110', name: 'Acetanilide', synonyms: 'N-Phenylacetamide', casNumber: '103-84-4', formula: 'C8H9NO', grade: 'Technical' },
+	{
+		code: 'RM-0110',
+		name: 'Acetanilide',
+		synonyms: 'N-Phenylacetamide',
+		casNumber: '103-84-4',
+		formula: 'C8H9NO',
+		grade: 'Technical',
+	},
 ]
 
 /**
@@ -70,7 +140,13 @@ async function seedInto(db: Db, now: Date): Promise<{ seeded: boolean }> {
 		if (!outcome.ok) throw outcome.error
 		materialIds.set(material.code, outcome.value.id)
 	}
-	await seedLibraryAndSpecifications(db, { now, author, reviewer: actorOf('reviewer@bandproof.test'), approver: actorOf('approver@bandproof.test'), materialIds })
+	await seedLibraryAndSpecifications(db, {
+		now,
+		author,
+		reviewer: actorOf('reviewer@bandproof.test'),
+		approver: actorOf('approver@bandproof.test'),
+		materialIds,
+	})
 	return { seeded: true }
 }
 
@@ -105,7 +181,13 @@ async function seedLibraryAndSpecifications(
 	let seed = 11
 	for (const code of Object.keys(DEMO_BANDS)) {
 		const materialId = lab.materialIds.get(code)!
-		const upload = async (fileName: string, bytes: Uint8Array, purpose: 'reference' | 'sample', acquired: number, lot: string | null) => {
+		const upload = async (
+			fileName: string,
+			bytes: Uint8Array,
+			purpose: 'reference' | 'sample',
+			acquired: number,
+			lot: string | null,
+		) => {
 			const outcome = await storeSpectrumFile(db, {
 				actor: author,
 				fileName,
@@ -128,9 +210,27 @@ async function seedLibraryAndSpecifications(
 		}
 		const slug = code.toLowerCase()
 		spectrumIds.set(code, {
-			reference: await upload(`${slug}_reference_a.jdx`, demoJcamp(code, `${STANDARDS[code]} — reference A`, { seed: seed++ }), 'reference', 230, 'RS-24-017'),
-			replicate: await upload(`${slug}_reference_b.jdx`, demoJcamp(code, `${STANDARDS[code]} — reference B`, { seed: seed++, shift: 0.4, scale: 0.97 }), 'reference', 229, 'RS-24-017'),
-			sample: await upload(`${slug}_lot_2611-04_c1.jdx`, demoJcamp(code, `${code} incoming lot 2611-04, container 1`, { seed: seed++, shift: -0.6, scale: 1.05 }), 'sample', 20, null),
+			reference: await upload(
+				`${slug}_reference_a.jdx`,
+				demoJcamp(code, `${STANDARDS[code]} — reference A`, { seed: seed++ }),
+				'reference',
+				230,
+				'RS-24-017',
+			),
+			replicate: await upload(
+				`${slug}_reference_b.jdx`,
+				demoJcamp(code, `${STANDARDS[code]} — reference B`, { seed: seed++, shift: 0.4, scale: 0.97 }),
+				'reference',
+				229,
+				'RS-24-017',
+			),
+			sample: await upload(
+				`${slug}_lot_2611-04_c1.jdx`,
+				demoJcamp(code, `${code} incoming lot 2611-04, container 1`, { seed: seed++, shift: -0.6, scale: 1.05 }),
+				'sample',
+				20,
+				null,
+			),
 		})
 	}
 
@@ -149,12 +249,28 @@ async function seedLibraryAndSpecifications(
 			...parseContent(version!.content),
 			scope: `Identity of every incoming container of ${title.toLowerCase()} from approved suppliers, before release to production.`,
 			referenceSpectrumId: spectra.reference,
-			method: { technique: 'ATR', rangeFrom: 650, rangeTo: 4000, resolution: 4, scans: 32, samplePreparation: 'Place a small amount of the sample on the diamond crystal, apply the pressure clamp until the strongest band reads about 0.5–1.0 absorbance, record against an air background taken within the previous 30 minutes.' },
+			method: {
+				technique: 'ATR',
+				rangeFrom: 650,
+				rangeTo: 4000,
+				resolution: 4,
+				scans: 32,
+				samplePreparation:
+					'Place a small amount of the sample on the diamond crystal, apply the pressure clamp until the strongest band reads about 0.5–1.0 absorbance, record against an air background taken within the previous 30 minutes.',
+			},
 		}
 		const suggested = suggestBandRows(reference.spectrum, content)
 		content = {
 			...content,
-			bands: suggested.rows.map((row, index) => ({ id: `demo-${code}-${index + 1}`, position: row.position, tolerance: null, assignment: row.assignment, intensityClass: row.intensityClass, shape: row.shape, required: row.required })),
+			bands: suggested.rows.map((row, index) => ({
+				id: `demo-${code}-${index + 1}`,
+				position: row.position,
+				tolerance: null,
+				assignment: row.assignment,
+				intensityClass: row.intensityClass,
+				shape: row.shape,
+				required: row.required,
+			})),
 		}
 		content = changes(content)
 		must(await saveDraft(db, { actor: author, versionId, revision: version!.revision, content, changeReason, now: at }))
@@ -164,35 +280,110 @@ async function seedLibraryAndSpecifications(
 	}
 	const signThrough = async (versionId: string, at: Date, effectiveFrom: Date) => {
 		must(await takeWorkflowStep(db, { actor: author, versionId, event: { type: 'submit' }, now: at }))
-		must(await takeWorkflowStep(db, { actor: reviewer, versionId, event: { type: 'sign', meaning: 'reviewed', reauthenticated: true }, now: new Date(at.getTime() + 86_400_000) }))
-		must(await takeWorkflowStep(db, { actor: approver, versionId, event: { type: 'sign', meaning: 'approved', reauthenticated: true, effectiveFrom }, now: new Date(at.getTime() + 2 * 86_400_000) }))
+		must(
+			await takeWorkflowStep(db, {
+				actor: reviewer,
+				versionId,
+				event: { type: 'sign', meaning: 'reviewed', reauthenticated: true },
+				now: new Date(at.getTime() + 86_400_000),
+			}),
+		)
+		must(
+			await takeWorkflowStep(db, {
+				actor: approver,
+				versionId,
+				event: { type: 'sign', meaning: 'approved', reauthenticated: true, effectiveFrom },
+				now: new Date(at.getTime() + 2 * 86_400_000),
+			}),
+		)
 		// The server's clock applies effective dates as they come; here the seed plays that part.
 		await applyDueEffectiveDates(db, new Date(effectiveFrom.getTime() + 60_000))
 	}
 	const pattern = 'QC-IR-{seq:4}'
 
 	// 1. Paracetamol: version 1 effective, then superseded by version 2 (tighter criteria).
-	const paracetamol = must(await createSpecification(db, { actor: author, materialId: lab.materialIds.get('RM-0102')!, title: 'Identification of paracetamol by ATR-FTIR', now: daysBefore(now, 220), pattern }))
+	const paracetamol = must(
+		await createSpecification(db, {
+			actor: author,
+			materialId: lab.materialIds.get('RM-0102')!,
+			title: 'Identification of paracetamol by ATR-FTIR',
+			now: daysBefore(now, 220),
+			pattern,
+		}),
+	)
 	await draftWith('RM-0102', 'Paracetamol', paracetamol.versionId, daysBefore(now, 219), (content) => content)
 	await signThrough(paracetamol.versionId, daysBefore(now, 215), daysBefore(now, 210))
-	const second = must(await startNextVersion(db, { actor: author, specificationId: paracetamol.specificationId, changeReason: 'Tighten the minimum correlation after the specificity review and add a derivative criterion.', now: daysBefore(now, 60) }))
-	await draftWith('RM-0102', 'Paracetamol', second.versionId, daysBefore(now, 59), (content) => ({
-		...content,
-		scope: `${content.scope} Applies to both approved suppliers (Halden Chemie and Orwell Fine Synthesis).`,
-		criteria: { ...content.criteria, minCorrelation: 0.98, minDerivativeCorrelation: 0.9, thresholdJustification: 'Replicate reference measurements correlate above 0.999; the nearest other material in the library (isopropyl alcohol) stays below 0.75. 0.98 leaves a wide margin on both sides.' },
-	}), 'Tighten the minimum correlation after the specificity review and add a derivative criterion.')
+	const second = must(
+		await startNextVersion(db, {
+			actor: author,
+			specificationId: paracetamol.specificationId,
+			changeReason: 'Tighten the minimum correlation after the specificity review and add a derivative criterion.',
+			now: daysBefore(now, 60),
+		}),
+	)
+	await draftWith(
+		'RM-0102',
+		'Paracetamol',
+		second.versionId,
+		daysBefore(now, 59),
+		(content) => ({
+			...content,
+			scope: `${content.scope} Applies to both approved suppliers (Halden Chemie and Orwell Fine Synthesis).`,
+			criteria: {
+				...content.criteria,
+				minCorrelation: 0.98,
+				minDerivativeCorrelation: 0.9,
+				thresholdJustification:
+					'Replicate reference measurements correlate above 0.999; the nearest other material in the library (isopropyl alcohol) stays below 0.75. 0.98 leaves a wide margin on both sides.',
+			},
+		}),
+		'Tighten the minimum correlation after the specificity review and add a derivative criterion.',
+	)
 	await signThrough(second.versionId, daysBefore(now, 50), daysBefore(now, 45))
 
 	// 2. Isopropyl alcohol: one effective version.
-	const ipa = must(await createSpecification(db, { actor: author, materialId: lab.materialIds.get('RM-0108')!, title: 'Identification of isopropyl alcohol by ATR-FTIR', now: daysBefore(now, 120), pattern }))
+	const ipa = must(
+		await createSpecification(db, {
+			actor: author,
+			materialId: lab.materialIds.get('RM-0108')!,
+			title: 'Identification of isopropyl alcohol by ATR-FTIR',
+			now: daysBefore(now, 120),
+			pattern,
+		}),
+	)
 	await draftWith('RM-0108', 'Isopropyl alcohol', ipa.versionId, daysBefore(now, 119), (content) => content)
 	await signThrough(ipa.versionId, daysBefore(now, 110), daysBefore(now, 105))
 
 	// 3. Acetylsalicylic acid: in review, with an open redline that suggests new wording.
-	const aspirin = must(await createSpecification(db, { actor: author, materialId: lab.materialIds.get('RM-0101')!, title: 'Identification of acetylsalicylic acid by ATR-FTIR', now: daysBefore(now, 10), pattern }))
+	const aspirin = must(
+		await createSpecification(db, {
+			actor: author,
+			materialId: lab.materialIds.get('RM-0101')!,
+			title: 'Identification of acetylsalicylic acid by ATR-FTIR',
+			now: daysBefore(now, 10),
+			pattern,
+		}),
+	)
 	await draftWith('RM-0101', 'Acetylsalicylic acid', aspirin.versionId, daysBefore(now, 9), (content) => content)
-	must(await takeWorkflowStep(db, { actor: author, versionId: aspirin.versionId, event: { type: 'submit' }, now: daysBefore(now, 8) }))
-	must(await addRedline(db, { actor: reviewer, versionId: aspirin.versionId, anchor: 'method.samplePreparation', body: 'Acetylsalicylic acid hydrolyses in moist air: say that the sample is measured within 10 minutes of opening the container.', suggestedText: 'Open the container in the sampling booth and measure within 10 minutes. Place a small amount of the sample on the diamond crystal, apply the pressure clamp until the strongest band reads about 0.5–1.0 absorbance, record against an air background taken within the previous 30 minutes.', now: daysBefore(now, 7) }))
+	must(
+		await takeWorkflowStep(db, {
+			actor: author,
+			versionId: aspirin.versionId,
+			event: { type: 'submit' },
+			now: daysBefore(now, 8),
+		}),
+	)
+	must(
+		await addRedline(db, {
+			actor: reviewer,
+			versionId: aspirin.versionId,
+			anchor: 'method.samplePreparation',
+			body: 'Acetylsalicylic acid hydrolyses in moist air: say that the sample is measured within 10 minutes of opening the container.',
+			suggestedText:
+				'Open the container in the sampling booth and measure within 10 minutes. Place a small amount of the sample on the diamond crystal, apply the pressure clamp until the strongest band reads about 0.5–1.0 absorbance, record against an air background taken within the previous 30 minutes.',
+			now: daysBefore(now, 7),
+		}),
+	)
 
 	// The controlled dossiers of the signed versions, stored as the lab would have issued them.
 	for (const versionId of [paracetamol.versionId, second.versionId, ipa.versionId]) {
@@ -203,6 +394,20 @@ async function seedLibraryAndSpecifications(
 	}
 
 	// 4. Ethyl acetate: a draft in progress.
-	const ethylAcetate = must(await createSpecification(db, { actor: author, materialId: lab.materialIds.get('RM-0107')!, title: 'Identification of ethyl acetate by ATR-FTIR', now: daysBefore(now, 3), pattern }))
-	await draftWith('RM-0107', 'Ethyl acetate', ethylAcetate.versionId, daysBefore(now, 2), (content) => ({ ...content, method: { ...content.method, samplePreparation: 'One drop of the liquid on the diamond crystal; cover with the volatile-liquid cap.' } }))
+	const ethylAcetate = must(
+		await createSpecification(db, {
+			actor: author,
+			materialId: lab.materialIds.get('RM-0107')!,
+			title: 'Identification of ethyl acetate by ATR-FTIR',
+			now: daysBefore(now, 3),
+			pattern,
+		}),
+	)
+	await draftWith('RM-0107', 'Ethyl acetate', ethylAcetate.versionId, daysBefore(now, 2), (content) => ({
+		...content,
+		method: {
+			...content.method,
+			samplePreparation: 'One drop of the liquid on the diamond crystal; cover with the volatile-liquid cap.',
+		},
+	}))
 }

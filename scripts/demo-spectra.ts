@@ -11,12 +11,98 @@ const HEIGHT = { vs: 0.95, s: 0.6, m: 0.32, w: 0.12 } as const
 
 /** Invented band lists (cm⁻¹) for the demo materials. */
 export const DEMO_BANDS: Record<string, Array<Band>> = {
-	'RM-0101': [[3010, 'm', 'broad'], [2870, 'w'], [1752, 'vs'], [1690, 'vs'], [1605, 's'], [1483, 'm'], [1457, 's'], [1370, 'm'], [1305, 's'], [1220, 's'], [1188, 'vs'], [1093, 'm'], [1014, 'm'], [917, 'm'], [754, 's'], [704, 'm']],
-	'RM-0102': [[3325, 's', 'broad'], [3160, 'm', 'broad'], [1654, 'vs'], [1610, 's'], [1563, 's'], [1507, 'vs'], [1443, 'm'], [1370, 'm'], [1328, 'm'], [1258, 's'], [1226, 's'], [1171, 'm'], [968, 'w'], [837, 'm'], [808, 'm'], [714, 'm']],
-	'RM-0107': [[2985, 'm'], [2940, 'w'], [1742, 'vs'], [1447, 'm'], [1374, 's'], [1240, 'vs'], [1098, 'w'], [1047, 's'], [938, 'w'], [848, 'w'], [786, 'w']],
-	'RM-0108': [[3340, 'vs', 'broad'], [2971, 's'], [2933, 'm'], [2885, 'w'], [1467, 'm'], [1380, 'm'], [1341, 'm'], [1161, 's'], [1129, 's'], [951, 's'], [817, 'm']],
-	'RM-0109': [[3064, 'w'], [2820, 'm'], [2738, 'm'], [1703, 'vs'], [1597, 's'], [1585, 'm'], [1455, 'm'], [1312, 'm'], [1204, 's'], [1167, 'm'], [828, 'm'], [746, 's'], [688, 's']],
-	'RM-0110': [[3294, 's'], [3195, 'w'], [3061, 'w'], [1665, 'vs'], [1600, 's'], [1557, 's'], [1500, 'm'], [1434, 's'], [1370, 'm'], [1322, 's'], [1265, 'm'], [754, 's'], [694, 's']],
+	'RM-0101': [
+		[3010, 'm', 'broad'],
+		[2870, 'w'],
+		[1752, 'vs'],
+		[1690, 'vs'],
+		[1605, 's'],
+		[1483, 'm'],
+		[1457, 's'],
+		[1370, 'm'],
+		[1305, 's'],
+		[1220, 's'],
+		[1188, 'vs'],
+		[1093, 'm'],
+		[1014, 'm'],
+		[917, 'm'],
+		[754, 's'],
+		[704, 'm'],
+	],
+	'RM-0102': [
+		[3325, 's', 'broad'],
+		[3160, 'm', 'broad'],
+		[1654, 'vs'],
+		[1610, 's'],
+		[1563, 's'],
+		[1507, 'vs'],
+		[1443, 'm'],
+		[1370, 'm'],
+		[1328, 'm'],
+		[1258, 's'],
+		[1226, 's'],
+		[1171, 'm'],
+		[968, 'w'],
+		[837, 'm'],
+		[808, 'm'],
+		[714, 'm'],
+	],
+	'RM-0107': [
+		[2985, 'm'],
+		[2940, 'w'],
+		[1742, 'vs'],
+		[1447, 'm'],
+		[1374, 's'],
+		[1240, 'vs'],
+		[1098, 'w'],
+		[1047, 's'],
+		[938, 'w'],
+		[848, 'w'],
+		[786, 'w'],
+	],
+	'RM-0108': [
+		[3340, 'vs', 'broad'],
+		[2971, 's'],
+		[2933, 'm'],
+		[2885, 'w'],
+		[1467, 'm'],
+		[1380, 'm'],
+		[1341, 'm'],
+		[1161, 's'],
+		[1129, 's'],
+		[951, 's'],
+		[817, 'm'],
+	],
+	'RM-0109': [
+		[3064, 'w'],
+		[2820, 'm'],
+		[2738, 'm'],
+		[1703, 'vs'],
+		[1597, 's'],
+		[1585, 'm'],
+		[1455, 'm'],
+		[1312, 'm'],
+		[1204, 's'],
+		[1167, 'm'],
+		[828, 'm'],
+		[746, 's'],
+		[688, 's'],
+	],
+	'RM-0110': [
+		[3294, 's'],
+		[3195, 'w'],
+		[3061, 'w'],
+		[1665, 'vs'],
+		[1600, 's'],
+		[1557, 's'],
+		[1500, 'm'],
+		[1434, 's'],
+		[1370, 'm'],
+		[1322, 's'],
+		[1265, 'm'],
+		[754, 's'],
+		[694, 's'],
+	],
 }
 
 /** A small deterministic pseudo-random generator (mulberry32), so demo files are reproducible. */
@@ -32,7 +118,10 @@ function random(seed: number): () => number {
 }
 
 /** A demo spectrum: 650–4000 cm⁻¹ every 1 cm⁻¹, pseudo-Voigt bands, a gentle baseline and a little noise. */
-export function demoSpectrum(code: string, options: { seed: number; shift?: number; scale?: number }): { x: Float64Array; y: Float64Array } {
+export function demoSpectrum(
+	code: string,
+	options: { seed: number; shift?: number; scale?: number },
+): { x: Float64Array; y: Float64Array } {
 	const bands = DEMO_BANDS[code]
 	if (!bands) throw new Error(`no demo bands for ${code}`)
 	const next = random(options.seed)
@@ -54,7 +143,11 @@ export function demoSpectrum(code: string, options: { seed: number; shift?: numb
 }
 
 /** The demo spectrum as JCAMP-DX bytes, as an instrument export might carry it. */
-export function demoJcamp(code: string, title: string, options: { seed: number; shift?: number; scale?: number }): Uint8Array {
+export function demoJcamp(
+	code: string,
+	title: string,
+	options: { seed: number; shift?: number; scale?: number },
+): Uint8Array {
 	const text = encodeSpectrumJcamp(demoSpectrum(code, options), {
 		title,
 		form: 'DIFDUP',

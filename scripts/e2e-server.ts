@@ -7,7 +7,14 @@ import { spawn } from 'node:child_process'
 import path from 'node:path'
 import postgres from 'postgres'
 import { startFakeSmtp } from './fake-smtp.ts'
-import { databaseNameOf, ensureDatabase, projectRoot, runMigrations, startCluster, withDatabase } from './postgres-cluster.ts'
+import {
+	databaseNameOf,
+	ensureDatabase,
+	projectRoot,
+	runMigrations,
+	startCluster,
+	withDatabase,
+} from './postgres-cluster.ts'
 
 const port = Number(process.env.PORT ?? 4173)
 const cluster = await startCluster({ purpose: 'e2e' })

@@ -29,11 +29,17 @@ try {
 	const { db, closeDb } = await import('#app/.server/db/client.ts')
 	const { seedDemoScenario } = await import('./demo-scenario.ts')
 	const { seeded } = await seedDemoScenario(db)
-	console.log(seeded ? 'Seeded the demo scenario (Calder Vale Pharmaceuticals).' : 'Database already holds data; demo seeding skipped.')
+	console.log(
+		seeded
+			? 'Seeded the demo scenario (Calder Vale Pharmaceuticals).'
+			: 'Database already holds data; demo seeding skipped.',
+	)
 	await closeDb()
 	if (!process.env.SMTP_URL) {
 		fakeSmtp = await startFakeSmtp({ databaseUrl: cluster.url })
-		console.log(`No SMTP_URL: mail goes to the local fake mail server on ${fakeSmtp.url} (Administration → Outgoing mail).`)
+		console.log(
+			`No SMTP_URL: mail goes to the local fake mail server on ${fakeSmtp.url} (Administration → Outgoing mail).`,
+		)
 	}
 } catch (error) {
 	console.error(error instanceof Error ? error.message : error)

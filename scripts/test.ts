@@ -26,14 +26,17 @@ function freePort(): Promise<number> {
 		server.once('error', reject)
 		server.listen(0, '127.0.0.1', () => {
 			const address = server.address()
-			server.close(() => (address && typeof address === 'object' ? resolve(address.port) : reject(new Error('no port'))))
+			server.close(() =>
+				address && typeof address === 'object' ? resolve(address.port) : reject(new Error('no port')),
+			)
 		})
 	})
 }
 
 const only = process.argv[2]
 if (!only || only === 'unit') run('Unit tests', bin('vitest'), ['run', '--project', 'unit'])
-if (!only || only === 'integration') run('Integration tests (PostgreSQL)', bin('vitest'), ['run', '--project', 'integration'])
+if (!only || only === 'integration')
+	run('Integration tests (PostgreSQL)', bin('vitest'), ['run', '--project', 'integration'])
 if (!only || only === 'e2e') {
 	run('Production build', bin('react-router'), ['build'])
 	mkdirSync(path.join(projectRoot, 'screenshots'), { recursive: true })

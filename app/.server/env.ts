@@ -6,7 +6,12 @@ const EnvSchema = z.object({
 	BETTER_AUTH_SECRET: z.string().min(32).optional(),
 	BETTER_AUTH_URL: z.string().url().optional(),
 	/** Minutes of inactivity after which a session ends. */
-	SESSION_IDLE_MINUTES: z.coerce.number().int().min(1).max(24 * 60).default(30),
+	SESSION_IDLE_MINUTES: z.coerce
+		.number()
+		.int()
+		.min(1)
+		.max(24 * 60)
+		.default(30),
 	/** Consecutive failed sign-ins that lock an account. */
 	LOCKOUT_THRESHOLD: z.coerce.number().int().min(1).max(100).default(5),
 	/** Minutes an account stays locked (an admin can unlock sooner). */

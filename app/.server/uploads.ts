@@ -19,7 +19,9 @@ export async function parseUpload(request: Request): Promise<FormData> {
 	} catch (error) {
 		if (error instanceof MaxFileSizeExceededError) {
 			throw data(
-				{ message: `A file is larger than ${MAX_SPECTRUM_FILE_BYTES / 1024 / 1024} MB, the most the library takes. Nothing was stored; remove that file and upload again.` },
+				{
+					message: `A file is larger than ${MAX_SPECTRUM_FILE_BYTES / 1024 / 1024} MB, the most the library takes. Nothing was stored; remove that file and upload again.`,
+				},
 				{ status: 413 },
 			)
 		}

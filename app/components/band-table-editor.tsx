@@ -5,10 +5,24 @@ import { cn } from '#app/utils/misc.ts'
 import type { BandRowProblem } from '#shared/specs/band-table.ts'
 import type { BandRow } from '#shared/specs/version-content.ts'
 
-type Suggestion = { position: number; assignment: string; intensityClass: BandRow['intensityClass']; shape: BandRow['shape']; required: boolean; relative: number }
+type Suggestion = {
+	position: number
+	assignment: string
+	intensityClass: BandRow['intensityClass']
+	shape: BandRow['shape']
+	required: boolean
+	relative: number
+}
 type SuggestionPayload = { rows: Array<Suggestion>; caveat: string; message: string | null }
 
-const INTENSITY_LABELS: Record<BandRow['intensityClass'], string> = { vs: 'very strong', s: 'strong', m: 'medium', w: 'weak', vw: 'very weak', v: 'variable' }
+const INTENSITY_LABELS: Record<BandRow['intensityClass'], string> = {
+	vs: 'very strong',
+	s: 'strong',
+	m: 'medium',
+	w: 'weak',
+	vw: 'very weak',
+	v: 'variable',
+}
 const cell = 'rounded border border-rule-strong bg-sheet px-2 py-1 text-sm aria-[invalid=true]:border-danger'
 
 let counter = 0
@@ -22,7 +36,10 @@ export function BandTableView({ rows }: { rows: Array<BandRow> }) {
 	return (
 		<section aria-labelledby="band-table-heading">
 			<h3 id="band-table-heading" className="mb-2 text-base font-bold">
-				Band table <span className="text-ink-faint text-sm font-normal">({rows.length} {rows.length === 1 ? 'band' : 'bands'})</span>
+				Band table{' '}
+				<span className="text-ink-faint text-sm font-normal">
+					({rows.length} {rows.length === 1 ? 'band' : 'bands'})
+				</span>
 			</h3>
 			{rows.length === 0 ? (
 				<p className="text-ink-soft text-sm">No bands.</p>
@@ -30,12 +47,24 @@ export function BandTableView({ rows }: { rows: Array<BandRow> }) {
 				<table className="w-full text-sm">
 					<thead>
 						<tr className="border-rule border-b text-left">
-							<th scope="col" className="py-1.5 pr-3 font-semibold">Position (cm⁻¹)</th>
-							<th scope="col" className="py-1.5 pr-3 font-semibold">± cm⁻¹</th>
-							<th scope="col" className="py-1.5 pr-3 font-semibold">Assignment</th>
-							<th scope="col" className="py-1.5 pr-3 font-semibold">Intensity</th>
-							<th scope="col" className="py-1.5 pr-3 font-semibold">Shape</th>
-							<th scope="col" className="py-1.5 font-semibold">Required</th>
+							<th scope="col" className="py-1.5 pr-3 font-semibold">
+								Position (cm⁻¹)
+							</th>
+							<th scope="col" className="py-1.5 pr-3 font-semibold">
+								± cm⁻¹
+							</th>
+							<th scope="col" className="py-1.5 pr-3 font-semibold">
+								Assignment
+							</th>
+							<th scope="col" className="py-1.5 pr-3 font-semibold">
+								Intensity
+							</th>
+							<th scope="col" className="py-1.5 pr-3 font-semibold">
+								Shape
+							</th>
+							<th scope="col" className="py-1.5 font-semibold">
+								Required
+							</th>
 						</tr>
 					</thead>
 					<tbody>
@@ -77,7 +106,8 @@ export function BandTableEditor({
 	const suggestions = useFetcher<SuggestionPayload>()
 	useEffect(() => setRows(initialRows), [initialRows])
 
-	const update = (id: string, patch: Partial<BandRow>) => setRows((current) => current.map((row) => (row.id === id ? { ...row, ...patch } : row)))
+	const update = (id: string, patch: Partial<BandRow>) =>
+		setRows((current) => current.map((row) => (row.id === id ? { ...row, ...patch } : row)))
 	const move = (index: number, by: -1 | 1) =>
 		setRows((current) => {
 			const next = [...current]
@@ -107,11 +137,19 @@ export function BandTableEditor({
 			<input type="hidden" name={name} value={JSON.stringify(rows)} />
 			<div className="flex flex-wrap items-center justify-between gap-2">
 				<h3 id="band-table-heading" className="text-base font-bold">
-					Band table <span className="text-ink-faint text-sm font-normal">({rows.length} {rows.length === 1 ? 'band' : 'bands'})</span>
+					Band table{' '}
+					<span className="text-ink-faint text-sm font-normal">
+						({rows.length} {rows.length === 1 ? 'band' : 'bands'})
+					</span>
 				</h3>
 				{readOnly ? null : (
 					<div className="flex gap-2">
-						<Button variant="secondary" size="sm" onClick={() => suggestions.load(suggestionsUrl)} disabled={suggestions.state === 'loading'}>
+						<Button
+							variant="secondary"
+							size="sm"
+							onClick={() => suggestions.load(suggestionsUrl)}
+							disabled={suggestions.state === 'loading'}
+						>
 							{suggestions.state === 'loading' ? 'Reading the reference…' : 'Suggest from the reference'}
 						</Button>
 						<Button variant="secondary" size="sm" onClick={() => add()}>
@@ -127,7 +165,11 @@ export function BandTableEditor({
 					) : (
 						<>
 							<div className="flex items-center justify-between gap-2">
-								<p className="font-semibold">{pending.length ? `${pending.length} bands suggested from the reference's peaks` : 'Every suggested band is in the table.'}</p>
+								<p className="font-semibold">
+									{pending.length
+										? `${pending.length} bands suggested from the reference's peaks`
+										: 'Every suggested band is in the table.'}
+								</p>
 								{pending.length ? (
 									<Button size="sm" onClick={() => pending.forEach((suggestion) => add(suggestion))}>
 										Add all suggested bands
@@ -137,12 +179,22 @@ export function BandTableEditor({
 							<p className="text-ink-soft mt-1 text-xs">{suggestions.data.caveat}</p>
 							<ul className="mt-2 grid gap-1 sm:grid-cols-2">
 								{pending.map((suggestion) => (
-									<li key={suggestion.position} className="bg-sheet flex items-center justify-between gap-2 rounded px-2 py-1">
+									<li
+										key={suggestion.position}
+										className="bg-sheet flex items-center justify-between gap-2 rounded px-2 py-1"
+									>
 										<span>
 											<span className="font-medium tabular-nums">{suggestion.position} cm⁻¹</span>{' '}
-											<span className="text-ink-soft">{suggestion.assignment || INTENSITY_LABELS[suggestion.intensityClass]}</span>
+											<span className="text-ink-soft">
+												{suggestion.assignment || INTENSITY_LABELS[suggestion.intensityClass]}
+											</span>
 										</span>
-										<Button size="sm" variant="quiet" onClick={() => add(suggestion)} aria-label={`Add the band at ${suggestion.position} cm⁻¹`}>
+										<Button
+											size="sm"
+											variant="quiet"
+											onClick={() => add(suggestion)}
+											aria-label={`Add the band at ${suggestion.position} cm⁻¹`}
+										>
 											Add
 										</Button>
 									</li>
@@ -153,19 +205,37 @@ export function BandTableEditor({
 				</div>
 			) : null}
 			{rows.length === 0 ? (
-				<p className="text-ink-soft text-sm">No bands yet. {readOnly ? '' : 'Suggest them from the reference spectrum, or add them one by one.'}</p>
+				<p className="text-ink-soft text-sm">
+					No bands yet. {readOnly ? '' : 'Suggest them from the reference spectrum, or add them one by one.'}
+				</p>
 			) : (
 				<div className="overflow-x-auto">
 					<table className="w-full text-sm">
 						<thead>
 							<tr className="border-rule border-b text-left">
-								<th scope="col" className="px-1 py-1.5 font-semibold">Position (cm⁻¹)</th>
-								<th scope="col" className="px-1 py-1.5 font-semibold">± cm⁻¹</th>
-								<th scope="col" className="px-1 py-1.5 font-semibold">Assignment</th>
-								<th scope="col" className="px-1 py-1.5 font-semibold">Intensity</th>
-								<th scope="col" className="px-1 py-1.5 font-semibold">Shape</th>
-								<th scope="col" className="px-1 py-1.5 font-semibold">Required</th>
-								{readOnly ? null : <th scope="col" className="px-1 py-1.5"><span className="sr-only">Row actions</span></th>}
+								<th scope="col" className="px-1 py-1.5 font-semibold">
+									Position (cm⁻¹)
+								</th>
+								<th scope="col" className="px-1 py-1.5 font-semibold">
+									± cm⁻¹
+								</th>
+								<th scope="col" className="px-1 py-1.5 font-semibold">
+									Assignment
+								</th>
+								<th scope="col" className="px-1 py-1.5 font-semibold">
+									Intensity
+								</th>
+								<th scope="col" className="px-1 py-1.5 font-semibold">
+									Shape
+								</th>
+								<th scope="col" className="px-1 py-1.5 font-semibold">
+									Required
+								</th>
+								{readOnly ? null : (
+									<th scope="col" className="px-1 py-1.5">
+										<span className="sr-only">Row actions</span>
+									</th>
+								)}
 							</tr>
 						</thead>
 						<tbody>
@@ -173,38 +243,121 @@ export function BandTableEditor({
 								const rowProblems = problemsOf(row.id)
 								const label = `band ${index + 1}`
 								return (
-									<tr key={row.id} className={cn('border-rule border-b align-top', rowProblems.length ? 'bg-danger-soft' : '')}>
+									<tr
+										key={row.id}
+										className={cn('border-rule border-b align-top', rowProblems.length ? 'bg-danger-soft' : '')}
+									>
 										<td className="px-1 py-1">
-											<input aria-label={`Position of ${label}`} type="number" step="0.1" value={row.position || ''} readOnly={readOnly} onChange={(event) => update(row.id, { position: Number(event.currentTarget.value) })} className={cn(cell, 'w-24 tabular-nums')} aria-invalid={rowProblems.some((problem) => problem.field !== 'tolerance') || undefined} />
+											<input
+												aria-label={`Position of ${label}`}
+												type="number"
+												step="0.1"
+												value={row.position || ''}
+												readOnly={readOnly}
+												onChange={(event) => update(row.id, { position: Number(event.currentTarget.value) })}
+												className={cn(cell, 'w-24 tabular-nums')}
+												aria-invalid={rowProblems.some((problem) => problem.field !== 'tolerance') || undefined}
+											/>
 										</td>
 										<td className="px-1 py-1">
-											<input aria-label={`Tolerance of ${label}`} type="number" step="0.1" min="0" placeholder="default" value={row.tolerance ?? ''} readOnly={readOnly} onChange={(event) => update(row.id, { tolerance: event.currentTarget.value === '' ? null : Number(event.currentTarget.value) })} className={cn(cell, 'w-20 tabular-nums')} aria-invalid={rowProblems.some((problem) => problem.field === 'tolerance') || undefined} />
+											<input
+												aria-label={`Tolerance of ${label}`}
+												type="number"
+												step="0.1"
+												min="0"
+												placeholder="default"
+												value={row.tolerance ?? ''}
+												readOnly={readOnly}
+												onChange={(event) =>
+													update(row.id, {
+														tolerance: event.currentTarget.value === '' ? null : Number(event.currentTarget.value),
+													})
+												}
+												className={cn(cell, 'w-20 tabular-nums')}
+												aria-invalid={rowProblems.some((problem) => problem.field === 'tolerance') || undefined}
+											/>
 										</td>
 										<td className="px-1 py-1">
-											<input aria-label={`Assignment of ${label}`} value={row.assignment} readOnly={readOnly} onChange={(event) => update(row.id, { assignment: event.currentTarget.value })} className={cn(cell, 'w-full min-w-56')} />
+											<input
+												aria-label={`Assignment of ${label}`}
+												value={row.assignment}
+												readOnly={readOnly}
+												onChange={(event) => update(row.id, { assignment: event.currentTarget.value })}
+												className={cn(cell, 'w-full min-w-56')}
+											/>
 											{rowProblems.map((problem) => (
-												<p key={problem.message} className="text-danger mt-1 text-xs">{problem.message}</p>
+												<p key={problem.message} className="text-danger mt-1 text-xs">
+													{problem.message}
+												</p>
 											))}
 										</td>
 										<td className="px-1 py-1">
-											<select aria-label={`Intensity of ${label}`} value={row.intensityClass} disabled={readOnly} onChange={(event) => update(row.id, { intensityClass: event.currentTarget.value as BandRow['intensityClass'] })} className={cell}>
-												{Object.entries(INTENSITY_LABELS).map(([value, text]) => <option key={value} value={value}>{text}</option>)}
+											<select
+												aria-label={`Intensity of ${label}`}
+												value={row.intensityClass}
+												disabled={readOnly}
+												onChange={(event) =>
+													update(row.id, { intensityClass: event.currentTarget.value as BandRow['intensityClass'] })
+												}
+												className={cell}
+											>
+												{Object.entries(INTENSITY_LABELS).map(([value, text]) => (
+													<option key={value} value={value}>
+														{text}
+													</option>
+												))}
 											</select>
 										</td>
 										<td className="px-1 py-1">
-											<select aria-label={`Shape of ${label}`} value={row.shape} disabled={readOnly} onChange={(event) => update(row.id, { shape: event.currentTarget.value as BandRow['shape'] })} className={cell}>
+											<select
+												aria-label={`Shape of ${label}`}
+												value={row.shape}
+												disabled={readOnly}
+												onChange={(event) => update(row.id, { shape: event.currentTarget.value as BandRow['shape'] })}
+												className={cell}
+											>
 												<option value="sharp">sharp</option>
 												<option value="broad">broad</option>
 											</select>
 										</td>
 										<td className="px-1 py-1 text-center">
-											<input aria-label={`${label} is required`} type="checkbox" checked={row.required} disabled={readOnly} onChange={(event) => update(row.id, { required: event.currentTarget.checked })} className="accent-accent mt-2" />
+											<input
+												aria-label={`${label} is required`}
+												type="checkbox"
+												checked={row.required}
+												disabled={readOnly}
+												onChange={(event) => update(row.id, { required: event.currentTarget.checked })}
+												className="accent-accent mt-2"
+											/>
 										</td>
 										{readOnly ? null : (
 											<td className="px-1 py-1 whitespace-nowrap">
-												<Button size="sm" variant="quiet" onClick={() => move(index, -1)} disabled={index === 0} aria-label={`Move ${label} up`}>↑</Button>
-												<Button size="sm" variant="quiet" onClick={() => move(index, 1)} disabled={index === rows.length - 1} aria-label={`Move ${label} down`}>↓</Button>
-												<Button size="sm" variant="quiet" onClick={() => setRows((current) => current.filter((other) => other.id !== row.id))} aria-label={`Remove ${label}`}>Remove</Button>
+												<Button
+													size="sm"
+													variant="quiet"
+													onClick={() => move(index, -1)}
+													disabled={index === 0}
+													aria-label={`Move ${label} up`}
+												>
+													↑
+												</Button>
+												<Button
+													size="sm"
+													variant="quiet"
+													onClick={() => move(index, 1)}
+													disabled={index === rows.length - 1}
+													aria-label={`Move ${label} down`}
+												>
+													↓
+												</Button>
+												<Button
+													size="sm"
+													variant="quiet"
+													onClick={() => setRows((current) => current.filter((other) => other.id !== row.id))}
+													aria-label={`Remove ${label}`}
+												>
+													Remove
+												</Button>
 											</td>
 										)}
 									</tr>
@@ -214,7 +367,12 @@ export function BandTableEditor({
 					</table>
 				</div>
 			)}
-			{readOnly ? null : <p className="text-ink-faint text-xs">An empty tolerance uses the default tolerance of the acceptance criteria, or 0.5 % of the position (Ph. Eur. 2.2.24) when none is set.</p>}
+			{readOnly ? null : (
+				<p className="text-ink-faint text-xs">
+					An empty tolerance uses the default tolerance of the acceptance criteria, or 0.5 % of the position (Ph. Eur.
+					2.2.24) when none is set.
+				</p>
+			)}
 		</section>
 	)
 }

@@ -13,7 +13,9 @@ export function DossierPanel({ base, stored }: { base: string; stored: boolean }
 		<section aria-labelledby="dossier-heading" className="bg-sheet border-rule rounded-lg border p-5">
 			<div className="flex flex-wrap items-center justify-between gap-3">
 				<div>
-					<h2 id="dossier-heading" className="text-lg font-bold">Dossier</h2>
+					<h2 id="dossier-heading" className="text-lg font-bold">
+						Dossier
+					</h2>
 					<p className="text-ink-soft text-sm">
 						{stored
 							? 'The controlled dossier of this version: rendered once and stored, so every download is the same file.'
@@ -31,15 +33,30 @@ export function DossierPanel({ base, stored }: { base: string; stored: boolean }
 					>
 						{preview ? 'Hide the preview' : 'Preview'}
 					</Button>
-					<a href={`${base}/dossier/pdf`} className={buttonVariants()} download>Download PDF</a>
-					<a href={`${base}/dossier/docx`} className={buttonVariants({ variant: 'secondary' })} download>Download DOCX</a>
-					<Link to="/verify" className={buttonVariants({ variant: 'quiet' })}>Verify a copy</Link>
+					<a href={`${base}/dossier/pdf`} className={buttonVariants()} download>
+						Download PDF
+					</a>
+					<a href={`${base}/dossier/docx`} className={buttonVariants({ variant: 'secondary' })} download>
+						Download DOCX
+					</a>
+					<Link to="/verify" className={buttonVariants({ variant: 'quiet' })}>
+						Verify a copy
+					</Link>
 				</div>
 			</div>
 			{preview ? (
 				<div className="mt-4">
-					{loading ? <p className="text-ink-soft mb-2 text-sm" role="status">Preparing the dossier… the first rendering of a version can take a few seconds.</p> : null}
-					<iframe title="Dossier preview" src={`${base}/dossier/pdf?inline=1`} onLoad={() => setLoading(false)} className="border-rule h-[80vh] w-full rounded border" />
+					{loading ? (
+						<p className="text-ink-soft mb-2 text-sm" role="status">
+							Preparing the dossier… the first rendering of a version can take a few seconds.
+						</p>
+					) : null}
+					<iframe
+						title="Dossier preview"
+						src={`${base}/dossier/pdf?inline=1`}
+						onLoad={() => setLoading(false)}
+						className="border-rule h-[80vh] w-full rounded border"
+					/>
 				</div>
 			) : null}
 		</section>

@@ -26,7 +26,9 @@ export function ErrorPage({ status, message, detail }: { status: number; message
 			<p className="text-ink-faint text-sm font-medium tracking-wide">Error {status}</p>
 			<h1 className="mt-2 text-2xl font-bold">{heading}</h1>
 			<p className="text-ink-soft mt-3">{explanation}</p>
-			{detail ? <pre className="bg-sheet border-rule mt-6 overflow-auto rounded border p-3 text-xs">{detail}</pre> : null}
+			{detail ? (
+				<pre className="bg-sheet border-rule mt-6 overflow-auto rounded border p-3 text-xs">{detail}</pre>
+			) : null}
 			<p className="mt-8">
 				<Link to="/" className="text-accent font-medium underline underline-offset-4">
 					Go to the overview

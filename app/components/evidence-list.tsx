@@ -43,7 +43,12 @@ type SpecificityResult = {
 	specific: boolean
 	comparedWith: number
 	replicates: Array<number>
-	suggestion: { threshold: number; lowestReplicate: number; nearestNonTarget: number; rule?: 'midpoint' | 'guidance-floor' } | null
+	suggestion: {
+		threshold: number
+		lowestReplicate: number
+		nearestNonTarget: number
+		rule?: 'midpoint' | 'guidance-floor'
+	} | null
 	thinMargin: boolean
 }
 
@@ -55,7 +60,8 @@ const VERDICT_LABEL: Record<string, { text: string; tone: 'good' | 'danger' | 'c
 	'not-specific': { text: 'Not specific', tone: 'danger' },
 }
 
-const fixed = (value: number | null | undefined, digits = 4) => (value === null || value === undefined ? '—' : value.toFixed(digits))
+const fixed = (value: number | null | undefined, digits = 4) =>
+	value === null || value === undefined ? '—' : value.toFixed(digits)
 
 /** The evidence records of a version, with every number behind each verdict. */
 export function EvidenceList({
@@ -83,12 +89,26 @@ export function EvidenceList({
 						<div className="flex flex-wrap items-center gap-3">
 							<StatusBadge tone={verdict.tone}>{verdict.text}</StatusBadge>
 							<h3 className="text-base font-semibold">{item.title}</h3>
-							<span className="text-ink-faint ml-auto text-xs">{formatUtc(item.createdAt)} · {item.createdByName}</span>
+							<span className="text-ink-faint ml-auto text-xs">
+								{formatUtc(item.createdAt)} · {item.createdByName}
+							</span>
 						</div>
 						{item.kind === 'comparison' ? (
-							<ComparisonDetail result={item.result as ComparisonResult} sample={item.sampleSpectrumId} referenceId={referenceId} referenceName={referenceName} bands={bands} exclusionRegions={exclusionRegions} title={item.title} />
+							<ComparisonDetail
+								result={item.result as ComparisonResult}
+								sample={item.sampleSpectrumId}
+								referenceId={referenceId}
+								referenceName={referenceName}
+								bands={bands}
+								exclusionRegions={exclusionRegions}
+								title={item.title}
+							/>
 						) : (
-							<SpecificityDetail result={item.result as SpecificityResult} evidenceId={item.id} canAccept={canAcceptThreshold} />
+							<SpecificityDetail
+								result={item.result as SpecificityResult}
+								evidenceId={item.id}
+								canAccept={canAcceptThreshold}
+							/>
 						)}
 					</li>
 				)
@@ -97,13 +117,31 @@ export function EvidenceList({
 	)
 }
 
-function ComparisonDetail({ result, sample, referenceId, referenceName, bands, exclusionRegions, title }: { result: ComparisonResult; sample: string | null; referenceId: string | null; referenceName: string | null; bands: Array<{ position: number; tolerance?: number; label: string }>; exclusionRegions: Array<Region>; title: string }) {
+function ComparisonDetail({
+	result,
+	sample,
+	referenceId,
+	referenceName,
+	bands,
+	exclusionRegions,
+	title,
+}: {
+	result: ComparisonResult
+	sample: string | null
+	referenceId: string | null
+	referenceName: string | null
+	bands: Array<{ position: number; tolerance?: number; label: string }>
+	exclusionRegions: Array<Region>
+	title: string
+}) {
 	const [overlay, setOverlay] = useState(false)
 	return (
 		<div className="mt-3 space-y-3 text-sm">
 			<dl className="grid grid-cols-2 gap-x-6 gap-y-1 sm:grid-cols-4">
 				<dt className="text-ink-faint">Correlation</dt>
-				<dd className="tabular-nums" data-testid="correlation">{fixed(result.correlation)}</dd>
+				<dd className="tabular-nums" data-testid="correlation">
+					{fixed(result.correlation)}
+				</dd>
 				<dt className="text-ink-faint">Derivative correlation</dt>
 				<dd className="tabular-nums">{fixed(result.derivativeCorrelation)}</dd>
 				<dt className="text-ink-faint">Distance</dt>
@@ -113,22 +151,38 @@ function ComparisonDetail({ result, sample, referenceId, referenceName, bands, e
 			</dl>
 			{result.reasons.length ? (
 				<ul className="text-ink list-disc pl-5">
-					{result.reasons.map((reason) => <li key={reason}>{reason}</li>)}
+					{result.reasons.map((reason) => (
+						<li key={reason}>{reason}</li>
+					))}
 				</ul>
 			) : null}
 			{result.flags.length ? (
-				<p className="text-caution">Quality flags: {result.flags.map((flag) => `${flag.spectrum}: ${flag.message}`).join('; ')}</p>
+				<p className="text-caution">
+					Quality flags: {result.flags.map((flag) => `${flag.spectrum}: ${flag.message}`).join('; ')}
+				</p>
 			) : null}
 			{result.bands.length ? (
 				<table className="w-full max-w-3xl text-sm">
 					<thead>
 						<tr className="border-rule border-b text-left">
-							<th scope="col" className="py-1 font-semibold">Expected (cm⁻¹)</th>
-							<th scope="col" className="py-1 font-semibold">Observed</th>
-							<th scope="col" className="py-1 font-semibold">Shift</th>
-							<th scope="col" className="py-1 font-semibold">Tolerance</th>
-							<th scope="col" className="py-1 font-semibold">Relative intensity (sample / reference)</th>
-							<th scope="col" className="py-1 font-semibold">Result</th>
+							<th scope="col" className="py-1 font-semibold">
+								Expected (cm⁻¹)
+							</th>
+							<th scope="col" className="py-1 font-semibold">
+								Observed
+							</th>
+							<th scope="col" className="py-1 font-semibold">
+								Shift
+							</th>
+							<th scope="col" className="py-1 font-semibold">
+								Tolerance
+							</th>
+							<th scope="col" className="py-1 font-semibold">
+								Relative intensity (sample / reference)
+							</th>
+							<th scope="col" className="py-1 font-semibold">
+								Result
+							</th>
 						</tr>
 					</thead>
 					<tbody>
@@ -137,20 +191,31 @@ function ComparisonDetail({ result, sample, referenceId, referenceName, bands, e
 								<td className="py-1 tabular-nums">
 									{band.expected.position}
 									{band.expected.required ? '' : ' (optional)'}
-									{band.expected.assignment ? <span className="text-ink-faint block text-xs">{band.expected.assignment}</span> : null}
+									{band.expected.assignment ? (
+										<span className="text-ink-faint block text-xs">{band.expected.assignment}</span>
+									) : null}
 								</td>
 								<td className="py-1 tabular-nums">{band.observed === null ? 'not found' : band.observed.toFixed(1)}</td>
-								<td className="py-1 tabular-nums">{band.shift === null ? '—' : `${band.shift > 0 ? '+' : ''}${band.shift.toFixed(1)}`}</td>
+								<td className="py-1 tabular-nums">
+									{band.shift === null ? '—' : `${band.shift > 0 ? '+' : ''}${band.shift.toFixed(1)}`}
+								</td>
 								<td className="py-1 tabular-nums">± {band.expected.tolerance.toFixed(1)}</td>
-								<td className="py-1 tabular-nums">{fixed(band.relativeIntensity.sample, 2)} / {fixed(band.relativeIntensity.reference, 2)}</td>
-								<td className="py-1">{band.withinTolerance ? 'within' : <span className="text-danger font-medium">outside</span>}</td>
+								<td className="py-1 tabular-nums">
+									{fixed(band.relativeIntensity.sample, 2)} / {fixed(band.relativeIntensity.reference, 2)}
+								</td>
+								<td className="py-1">
+									{band.withinTolerance ? 'within' : <span className="text-danger font-medium">outside</span>}
+								</td>
 							</tr>
 						))}
 					</tbody>
 				</table>
 			) : null}
 			{result.extraBands.length ? (
-				<p className="text-ink-soft">Strong sample bands the reference lacks: {result.extraBands.map((band) => `${Math.round(band.position)} cm⁻¹`).join(', ')}</p>
+				<p className="text-ink-soft">
+					Strong sample bands the reference lacks:{' '}
+					{result.extraBands.map((band) => `${Math.round(band.position)} cm⁻¹`).join(', ')}
+				</p>
 			) : null}
 			{referenceId && sample ? (
 				<div>
@@ -161,7 +226,11 @@ function ComparisonDetail({ result, sample, referenceId, referenceName, bands, e
 						<div className="mt-3">
 							<SpectrumViewer
 								sources={[
-									{ id: referenceId, label: `Reference: ${referenceName ?? 'reference'}`, url: `/spectra/${referenceId}/data` },
+									{
+										id: referenceId,
+										label: `Reference: ${referenceName ?? 'reference'}`,
+										url: `/spectra/${referenceId}/data`,
+									},
 									{ id: sample, label: `Sample: ${title.split(' against ')[0]}`, url: `/spectra/${sample}/data` },
 								]}
 								bands={bands}
@@ -175,39 +244,67 @@ function ComparisonDetail({ result, sample, referenceId, referenceName, bands, e
 	)
 }
 
-function SpecificityDetail({ result, evidenceId, canAccept }: { result: SpecificityResult; evidenceId: string; canAccept: boolean }) {
+function SpecificityDetail({
+	result,
+	evidenceId,
+	canAccept,
+}: {
+	result: SpecificityResult
+	evidenceId: string
+	canAccept: boolean
+}) {
 	return (
 		<div className="mt-3 space-y-2 text-sm">
 			{result.nearest ? (
 				<p>
-					Nearest other material: <span className="font-medium">{result.nearest.materialName}</span> ({result.nearest.fileName}), correlation{' '}
-					<span className="tabular-nums">{result.nearest.correlation.toFixed(4)}</span> against the threshold {result.threshold}: margin{' '}
-					<span className="font-medium tabular-nums">{fixed(result.margin)}</span>, from {result.comparedWith} other reference spectra.
+					Nearest other material: <span className="font-medium">{result.nearest.materialName}</span> (
+					{result.nearest.fileName}), correlation{' '}
+					<span className="tabular-nums">{result.nearest.correlation.toFixed(4)}</span> against the threshold{' '}
+					{result.threshold}: margin <span className="font-medium tabular-nums">{fixed(result.margin)}</span>, from{' '}
+					{result.comparedWith} other reference spectra.
 				</p>
 			) : (
-				<p>The library holds no reference spectrum of another material yet, so specificity cannot be shown. Upload references of the close relatives of this material.</p>
+				<p>
+					The library holds no reference spectrum of another material yet, so specificity cannot be shown. Upload
+					references of the close relatives of this material.
+				</p>
 			)}
 			{result.thinMargin ? (
 				<p className="border-caution bg-caution-soft rounded-md border-l-4 px-3 py-2">
-					The margin is thin: a sample of the nearest material could pass a correlation-only test. Rely on the band table and consider a higher threshold or a derivative criterion.
+					The margin is thin: a sample of the nearest material could pass a correlation-only test. Rely on the band
+					table and consider a higher threshold or a derivative criterion.
 				</p>
 			) : null}
-			{result.replicates.length ? <p className="text-ink-soft">Replicate references of this material correlate at {result.replicates.map((value) => value.toFixed(4)).join(', ')}.</p> : null}
+			{result.replicates.length ? (
+				<p className="text-ink-soft">
+					Replicate references of this material correlate at{' '}
+					{result.replicates.map((value) => value.toFixed(4)).join(', ')}.
+				</p>
+			) : null}
 			{result.suggestion ? (
 				<div className="border-accent bg-accent-soft flex flex-wrap items-center gap-3 rounded-md border px-3 py-2">
 					<p className="flex-1">
-						Suggested minimum correlation: <span className="font-semibold tabular-nums">{result.suggestion.threshold}</span>, between the lowest replicate ({result.suggestion.lowestReplicate.toFixed(4)}) and the nearest other material ({result.suggestion.nearestNonTarget.toFixed(4)})
-						{result.suggestion.rule === 'guidance-floor' ? ': their midpoint lies below 0.95, the lowest threshold regulatory guidance accepts without justification, so 0.95 is suggested.' : ', at their midpoint.'}
+						Suggested minimum correlation:{' '}
+						<span className="font-semibold tabular-nums">{result.suggestion.threshold}</span>, between the lowest
+						replicate ({result.suggestion.lowestReplicate.toFixed(4)}) and the nearest other material (
+						{result.suggestion.nearestNonTarget.toFixed(4)})
+						{result.suggestion.rule === 'guidance-floor'
+							? ': their midpoint lies below 0.95, the lowest threshold regulatory guidance accepts without justification, so 0.95 is suggested.'
+							: ', at their midpoint.'}
 					</p>
 					{canAccept ? (
 						<Form method="post">
 							<input type="hidden" name="evidenceId" value={evidenceId} />
-							<Button type="submit" size="sm" name="intent" value="accept-threshold">Use this threshold</Button>
+							<Button type="submit" size="sm" name="intent" value="accept-threshold">
+								Use this threshold
+							</Button>
 						</Form>
 					) : null}
 				</div>
 			) : result.nearest ? (
-				<p className="text-ink-faint">Upload replicate measurements of the reference material to get a threshold suggested from data.</p>
+				<p className="text-ink-faint">
+					Upload replicate measurements of the reference material to get a threshold suggested from data.
+				</p>
 			) : null}
 		</div>
 	)

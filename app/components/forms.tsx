@@ -19,7 +19,11 @@ export function FieldErrors({ id, errors }: { id: string; errors: ErrorList }) {
 export function FormErrors({ id, errors }: { id?: string; errors: ErrorList }) {
 	if (!errors?.length) return null
 	return (
-		<div id={id} role="alert" className="border-danger bg-danger-soft text-danger mb-4 rounded-md border px-4 py-3 text-sm">
+		<div
+			id={id}
+			role="alert"
+			className="border-danger bg-danger-soft text-danger mb-4 rounded-md border px-4 py-3 text-sm"
+		>
 			{errors.map((message) => (
 				<p key={message}>{message}</p>
 			))}

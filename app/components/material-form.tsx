@@ -35,7 +35,11 @@ export function MaterialForm({
 		shouldRevalidate: 'onInput',
 	})
 	return (
-		<Form method="post" {...getFormProps(form)} className="bg-sheet border-rule max-w-3xl space-y-5 rounded-lg border p-6">
+		<Form
+			method="post"
+			{...getFormProps(form)}
+			className="bg-sheet border-rule max-w-3xl space-y-5 rounded-lg border p-6"
+		>
 			<FormErrors id={form.errorId} errors={form.errors} />
 			{defaultValue?.revision ? <input type="hidden" name="revision" value={defaultValue.revision} /> : null}
 			<div className="grid gap-5 md:grid-cols-2">
@@ -49,7 +53,11 @@ export function MaterialForm({
 					label="CAS Registry Number"
 					hint="Optional; the check digit is verified"
 					errors={fields.casNumber.errors}
-					inputProps={{ ...getInputProps(fields.casNumber, { type: 'text' }), inputMode: 'numeric', placeholder: 'e.g. 50-78-2' }}
+					inputProps={{
+						...getInputProps(fields.casNumber, { type: 'text' }),
+						inputMode: 'numeric',
+						placeholder: 'e.g. 50-78-2',
+					}}
 				/>
 			</div>
 			<Field label="Name" errors={fields.name.errors} inputProps={getInputProps(fields.name, { type: 'text' })} />
@@ -60,7 +68,11 @@ export function MaterialForm({
 				textareaProps={getTextareaProps(fields.synonyms)}
 			/>
 			<div className="grid gap-5 md:grid-cols-2">
-				<Field label="Formula" errors={fields.formula.errors} inputProps={getInputProps(fields.formula, { type: 'text' })} />
+				<Field
+					label="Formula"
+					errors={fields.formula.errors}
+					inputProps={getInputProps(fields.formula, { type: 'text' })}
+				/>
 				<Field
 					label="Grade"
 					hint="e.g. Ph. Eur., USP, technical"

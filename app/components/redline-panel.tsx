@@ -40,7 +40,10 @@ export function RedlinePanel({
 	return (
 		<section aria-labelledby="redlines-heading" className="bg-sheet border-rule rounded-lg border p-5">
 			<h2 id="redlines-heading" className="mb-1 text-lg font-bold">
-				Redlines <span className="text-ink-faint text-sm font-normal">({open} open of {threads.length})</span>
+				Redlines{' '}
+				<span className="text-ink-faint text-sm font-normal">
+					({open} open of {threads.length})
+				</span>
 			</h2>
 			{open ? <p className="text-ink-soft mb-3 text-sm">A version with open redlines cannot be signed.</p> : null}
 			{threads.length === 0 && !canAdd ? <p className="text-ink-soft text-sm">No redlines.</p> : null}
@@ -48,9 +51,13 @@ export function RedlinePanel({
 				{threads.map((thread) => (
 					<li key={thread.id} className="border-rule rounded-md border p-3 text-sm" data-testid="redline">
 						<div className="flex flex-wrap items-center gap-2">
-							<StatusBadge tone={thread.status === 'open' ? 'caution' : 'neutral'}>{thread.status === 'open' ? 'Open' : 'Resolved'}</StatusBadge>
+							<StatusBadge tone={thread.status === 'open' ? 'caution' : 'neutral'}>
+								{thread.status === 'open' ? 'Open' : 'Resolved'}
+							</StatusBadge>
 							<span className="font-semibold">{thread.anchorLabel}</span>
-							<span className="text-ink-faint ml-auto text-xs">{thread.authorName} · {formatUtc(thread.createdAt)}</span>
+							<span className="text-ink-faint ml-auto text-xs">
+								{thread.authorName} · {formatUtc(thread.createdAt)}
+							</span>
 						</div>
 						<p className="mt-2 whitespace-pre-line">{thread.body}</p>
 						{thread.suggestedText !== null ? (
@@ -61,7 +68,9 @@ export function RedlinePanel({
 									<Form method="post" className="mt-2">
 										<input type="hidden" name="intent" value="redline-accept" />
 										<input type="hidden" name="redlineId" value={thread.id} />
-										<Button type="submit" size="sm" disabled={busy}>Accept the suggestion</Button>
+										<Button type="submit" size="sm" disabled={busy}>
+											Accept the suggestion
+										</Button>
 									</Form>
 								) : null}
 							</div>
@@ -72,21 +81,34 @@ export function RedlinePanel({
 							</p>
 						))}
 						{thread.status === 'resolved' && thread.resolverName ? (
-							<p className="text-ink-faint mt-2 text-xs">Resolved by {thread.resolverName}{thread.resolution ? `: ${thread.resolution}` : ''}</p>
+							<p className="text-ink-faint mt-2 text-xs">
+								Resolved by {thread.resolverName}
+								{thread.resolution ? `: ${thread.resolution}` : ''}
+							</p>
 						) : null}
 						{canDiscuss ? (
 							<div className="mt-2 flex flex-wrap items-end gap-2">
 								<Form method="post" className="flex flex-1 gap-2">
 									<input type="hidden" name="intent" value="redline-reply" />
 									<input type="hidden" name="redlineId" value={thread.id} />
-									<label htmlFor={`reply-${thread.id}`} className="sr-only">Reply</label>
+									<label htmlFor={`reply-${thread.id}`} className="sr-only">
+										Reply
+									</label>
 									<input id={`reply-${thread.id}`} name="body" placeholder="Reply…" className={inputClass} />
-									<Button type="submit" size="sm" variant="secondary" disabled={busy}>Reply</Button>
+									<Button type="submit" size="sm" variant="secondary" disabled={busy}>
+										Reply
+									</Button>
 								</Form>
 								<Form method="post">
-									<input type="hidden" name="intent" value={thread.status === 'open' ? 'redline-resolve' : 'redline-reopen'} />
+									<input
+										type="hidden"
+										name="intent"
+										value={thread.status === 'open' ? 'redline-resolve' : 'redline-reopen'}
+									/>
 									<input type="hidden" name="redlineId" value={thread.id} />
-									<Button type="submit" size="sm" variant="quiet" disabled={busy}>{thread.status === 'open' ? 'Mark resolved' : 'Reopen'}</Button>
+									<Button type="submit" size="sm" variant="quiet" disabled={busy}>
+										{thread.status === 'open' ? 'Mark resolved' : 'Reopen'}
+									</Button>
 								</Form>
 							</div>
 						) : null}
@@ -98,22 +120,41 @@ export function RedlinePanel({
 					<input type="hidden" name="intent" value="redline-add" />
 					<h3 className="text-base font-semibold">Add a redline</h3>
 					<div>
-						<label htmlFor="redline-anchor" className="mb-1 block text-sm font-medium">About</label>
+						<label htmlFor="redline-anchor" className="mb-1 block text-sm font-medium">
+							About
+						</label>
 						<select id="redline-anchor" name="anchor" className={inputClass}>
-							{Object.entries(FIELD_ANCHORS).map(([value, label]) => <option key={value} value={value}>{label}</option>)}
-							{bands.map((band) => <option key={band.id} value={`band:${band.id}`}>Band {band.position} cm⁻¹</option>)}
+							{Object.entries(FIELD_ANCHORS).map(([value, label]) => (
+								<option key={value} value={value}>
+									{label}
+								</option>
+							))}
+							{bands.map((band) => (
+								<option key={band.id} value={`band:${band.id}`}>
+									Band {band.position} cm⁻¹
+								</option>
+							))}
 						</select>
 					</div>
 					<div>
-						<label htmlFor="redline-body" className="mb-1 block text-sm font-medium">Comment</label>
+						<label htmlFor="redline-body" className="mb-1 block text-sm font-medium">
+							Comment
+						</label>
 						<textarea id="redline-body" name="body" required className={`${inputClass} min-h-16`} />
 					</div>
 					<div>
-						<label htmlFor="redline-suggestion" className="mb-1 block text-sm font-medium">Suggested replacement text (optional)</label>
+						<label htmlFor="redline-suggestion" className="mb-1 block text-sm font-medium">
+							Suggested replacement text (optional)
+						</label>
 						<textarea id="redline-suggestion" name="suggestedText" className={`${inputClass} min-h-16`} />
-						<p className="text-ink-faint mt-1 text-xs">For a text field it replaces the whole field; for a band it replaces the assignment. The author accepts it in one click.</p>
+						<p className="text-ink-faint mt-1 text-xs">
+							For a text field it replaces the whole field; for a band it replaces the assignment. The author accepts it
+							in one click.
+						</p>
 					</div>
-					<Button type="submit" disabled={busy}>Add redline</Button>
+					<Button type="submit" disabled={busy}>
+						Add redline
+					</Button>
 				</Form>
 			) : null}
 		</section>

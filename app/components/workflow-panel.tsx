@@ -33,22 +33,44 @@ export function WorkflowActions({
 	if (actions.length === 0) return null
 	return (
 		<section aria-labelledby="workflow-heading" className="bg-sheet border-rule rounded-lg border p-5">
-			<h2 id="workflow-heading" className="mb-3 text-lg font-bold">Your next step</h2>
+			<h2 id="workflow-heading" className="mb-3 text-lg font-bold">
+				Your next step
+			</h2>
 			<FormErrors errors={errors} />
 			<div className="flex flex-wrap items-start gap-4">
 				{actions.map((action) =>
 					action.needs.reauthentication ? (
-						<SigningDialog key={action.action} action={action} statement={action.action === 'sign-approved' ? statements.approved : statements.reviewed} busy={busy} />
+						<SigningDialog
+							key={action.action}
+							action={action}
+							statement={action.action === 'sign-approved' ? statements.approved : statements.reviewed}
+							busy={busy}
+						/>
 					) : action.needs.reason !== 'none' ? (
-						<Form key={action.action} method="post" className="border-rule flex min-w-80 flex-1 flex-col gap-2 rounded-md border p-3">
+						<Form
+							key={action.action}
+							method="post"
+							className="border-rule flex min-w-80 flex-1 flex-col gap-2 rounded-md border p-3"
+						>
 							<input type="hidden" name="intent" value="workflow" />
 							<input type="hidden" name="step" value={action.action} />
 							<label htmlFor={`reason-${action.action}`} className="text-sm font-medium">
-								{action.needs.reason === 'required' ? `Reason (required) to ${action.label.toLowerCase()}` : `Reason to ${action.label.toLowerCase()} (optional)`}
+								{action.needs.reason === 'required'
+									? `Reason (required) to ${action.label.toLowerCase()}`
+									: `Reason to ${action.label.toLowerCase()} (optional)`}
 							</label>
-							<textarea id={`reason-${action.action}`} name="reason" className={`${inputClass} min-h-16`} disabled={!action.enabled} />
+							<textarea
+								id={`reason-${action.action}`}
+								name="reason"
+								className={`${inputClass} min-h-16`}
+								disabled={!action.enabled}
+							/>
 							<div>
-								<Button type="submit" variant={action.action === 'withdraw' ? 'secondary' : 'danger'} disabled={!action.enabled || busy}>
+								<Button
+									type="submit"
+									variant={action.action === 'withdraw' ? 'secondary' : 'danger'}
+									disabled={!action.enabled || busy}
+								>
 									{action.label}
 								</Button>
 							</div>
@@ -79,7 +101,11 @@ function SigningDialog({ action, statement, busy }: { action: AvailableAction; s
 				{action.label}…
 			</Button>
 			{action.reason ? <p className="text-ink-soft max-w-md text-xs">{action.reason}</p> : null}
-			<dialog ref={dialog} aria-labelledby={`${action.action}-title`} className="bg-sheet border-rule m-auto max-w-xl rounded-lg border p-0 shadow-xl backdrop:bg-black/40">
+			<dialog
+				ref={dialog}
+				aria-labelledby={`${action.action}-title`}
+				className="bg-sheet border-rule m-auto max-w-xl rounded-lg border p-0 shadow-xl backdrop:bg-black/40"
+			>
 				<Form method="post" className="space-y-4 p-6">
 					<input type="hidden" name="intent" value="workflow" />
 					<input type="hidden" name="step" value={action.action} />
@@ -87,22 +113,51 @@ function SigningDialog({ action, statement, busy }: { action: AvailableAction; s
 					<h2 id={`${action.action}-title`} className="text-lg font-bold">
 						Electronic signature: {action.action === 'sign-approved' ? 'approved' : 'reviewed'}
 					</h2>
-					<p className="bg-paper border-rule rounded-md border p-3 text-sm" data-testid="signature-statement">{statement}</p>
+					<p className="bg-paper border-rule rounded-md border p-3 text-sm" data-testid="signature-statement">
+						{statement}
+					</p>
 					{action.needs.effectiveFrom ? (
 						<div>
-							<label htmlFor="effective-from" className="mb-1 block text-sm font-medium">Effective from (your local time)</label>
-							<input id="effective-from" type="datetime-local" name="effectiveFrom" defaultValue={today} min={today} className={inputClass} />
-							<p className="text-ink-faint mt-1 text-xs">Now or later. The version becomes effective by itself at that time and replaces the current effective version.</p>
+							<label htmlFor="effective-from" className="mb-1 block text-sm font-medium">
+								Effective from (your local time)
+							</label>
+							<input
+								id="effective-from"
+								type="datetime-local"
+								name="effectiveFrom"
+								defaultValue={today}
+								min={today}
+								className={inputClass}
+							/>
+							<p className="text-ink-faint mt-1 text-xs">
+								Now or later. The version becomes effective by itself at that time and replaces the current effective
+								version.
+							</p>
 						</div>
 					) : null}
 					<div>
-						<label htmlFor={`${action.action}-password`} className="mb-1 block text-sm font-medium">Your password</label>
-						<input id={`${action.action}-password`} type="password" name="password" autoComplete="current-password" required className={inputClass} />
-						<p className="text-ink-faint mt-1 text-xs">Signing requires your password each time. Wrong passwords count toward locking your account.</p>
+						<label htmlFor={`${action.action}-password`} className="mb-1 block text-sm font-medium">
+							Your password
+						</label>
+						<input
+							id={`${action.action}-password`}
+							type="password"
+							name="password"
+							autoComplete="current-password"
+							required
+							className={inputClass}
+						/>
+						<p className="text-ink-faint mt-1 text-xs">
+							Signing requires your password each time. Wrong passwords count toward locking your account.
+						</p>
 					</div>
 					<div className="flex gap-3">
-						<Button type="submit" disabled={busy}>Sign</Button>
-						<Button variant="secondary" onClick={() => dialog.current?.close()}>Cancel</Button>
+						<Button type="submit" disabled={busy}>
+							Sign
+						</Button>
+						<Button variant="secondary" onClick={() => dialog.current?.close()}>
+							Cancel
+						</Button>
 					</div>
 				</Form>
 			</dialog>
@@ -117,11 +172,15 @@ export function SignatureManifest({ signatures, verified }: { signatures: Array<
 	return (
 		<section aria-labelledby="signatures-heading" className="bg-sheet border-rule rounded-lg border p-5">
 			<div className="mb-3 flex flex-wrap items-center justify-between gap-2">
-				<h2 id="signatures-heading" className="text-lg font-bold">Signatures</h2>
+				<h2 id="signatures-heading" className="text-lg font-bold">
+					Signatures
+				</h2>
 				{current.length ? (
 					<Form method="get" preventScrollReset>
 						<input type="hidden" name="verify" value="1" />
-						<Button type="submit" size="sm" variant="secondary">Verify against the content</Button>
+						<Button type="submit" size="sm" variant="secondary">
+							Verify against the content
+						</Button>
 					</Form>
 				) : null}
 			</div>
@@ -140,18 +199,26 @@ export function SignatureManifest({ signatures, verified }: { signatures: Array<
 								)
 							) : null}
 						</div>
-						<p className="text-ink-soft mt-1 tabular-nums">{signature.signedAtUtc} · {signature.signedAtLocal}</p>
+						<p className="text-ink-soft mt-1 tabular-nums">
+							{signature.signedAtUtc} · {signature.signedAtLocal}
+						</p>
 						<p className="mt-1">{signature.statement}</p>
-						<p className="text-ink-faint mt-1 font-mono text-xs break-all">SHA-256 {signature.contentSha256} · {signature.authentication}</p>
+						<p className="text-ink-faint mt-1 font-mono text-xs break-all">
+							SHA-256 {signature.contentSha256} · {signature.authentication}
+						</p>
 					</li>
 				))}
 			</ul>
 			{voided.length ? (
 				<details className="mt-3 text-sm">
-					<summary className="text-ink-soft cursor-pointer">{voided.length} earlier signature{voided.length === 1 ? '' : 's'} voided by a return to draft</summary>
+					<summary className="text-ink-soft cursor-pointer">
+						{voided.length} earlier signature{voided.length === 1 ? '' : 's'} voided by a return to draft
+					</summary>
 					<ul className="mt-2 space-y-1">
 						{voided.map((signature) => (
-							<li key={signature.id} className="text-ink-faint">{signature.printedName}, {signature.meaning}, {signature.signedAtUtc}</li>
+							<li key={signature.id} className="text-ink-faint">
+								{signature.printedName}, {signature.meaning}, {signature.signedAtUtc}
+							</li>
 						))}
 					</ul>
 				</details>

@@ -26,15 +26,27 @@ export default function Queue({ loaderData }: Route.ComponentProps) {
 	const { items } = loaderData
 	return (
 		<>
-			<PageHeader title="My queue" description="Versions that wait for you: drafts to finish or revise, versions to review, versions to approve." />
+			<PageHeader
+				title="My queue"
+				description="Versions that wait for you: drafts to finish or revise, versions to review, versions to approve."
+			/>
 			{items.length === 0 ? (
-				<EmptyState title="Nothing waits for you">When a draft needs you, or a version is submitted for your review or approval, it appears here.</EmptyState>
+				<EmptyState title="Nothing waits for you">
+					When a draft needs you, or a version is submitted for your review or approval, it appears here.
+				</EmptyState>
 			) : (
 				<ul className="bg-sheet border-rule divide-rule divide-y rounded-lg border">
 					{items.map((item) => (
-						<li key={`${item.versionId}-${item.task}`} className="flex flex-wrap items-center gap-3 px-4 py-3 text-sm" data-testid="queue-item">
+						<li
+							key={`${item.versionId}-${item.task}`}
+							className="flex flex-wrap items-center gap-3 px-4 py-3 text-sm"
+							data-testid="queue-item"
+						>
 							<StatusBadge tone={TASK_LABELS[item.task].tone}>{TASK_LABELS[item.task].text}</StatusBadge>
-							<Link to={`/specifications/${item.specificationId}/versions/${item.versionId}`} className="text-accent font-medium underline-offset-4 hover:underline">
+							<Link
+								to={`/specifications/${item.specificationId}/versions/${item.versionId}`}
+								className="text-accent font-medium underline-offset-4 hover:underline"
+							>
 								{item.documentNumber} v{item.versionNumber}
 							</Link>
 							<span>{item.title}</span>

@@ -37,7 +37,10 @@ export type CreateUserValues = z.infer<typeof CreateUserSchema>
 
 export const UserAdminActionSchema = z.discriminatedUnion('intent', [
 	z.object({ intent: z.literal('set-roles'), roles: RolesField }),
-	z.object({ intent: z.literal('deactivate'), reason: z.string().trim().min(5, 'Say why the account is deactivated').max(500) }),
+	z.object({
+		intent: z.literal('deactivate'),
+		reason: z.string().trim().min(5, 'Say why the account is deactivated').max(500),
+	}),
 	z.object({ intent: z.literal('reactivate') }),
 	z.object({ intent: z.literal('unlock') }),
 ])

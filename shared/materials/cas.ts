@@ -6,8 +6,7 @@
 const CAS_PATTERN = /^(\d{2,7})-(\d{2})-(\d)$/
 
 export type CasCheck =
-	| { valid: true; normalized: string }
-	| { valid: false; reason: 'format' | 'check-digit'; expectedCheckDigit?: number }
+	{ valid: true; normalized: string } | { valid: false; reason: 'format' | 'check-digit'; expectedCheckDigit?: number }
 
 /** The check digit CAS would give the digits before it (a string of digits, hyphens ignored). */
 export function casCheckDigit(digitsBeforeCheck: string): number {

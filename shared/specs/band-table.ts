@@ -25,7 +25,8 @@ export function validateBandTable(
 			problems.push({ rowId: row.id, field: 'tolerance', message: 'The tolerance must be a positive number of cm⁻¹' })
 		}
 	}
-	const tolerance = (row: BandRow) => bandTolerance({ position: row.position, tolerance: row.tolerance ?? undefined }, defaultTolerance)
+	const tolerance = (row: BandRow) =>
+		bandTolerance({ position: row.position, tolerance: row.tolerance ?? undefined }, defaultTolerance)
 	const sorted = [...bands].sort((a, b) => a.position - b.position)
 	for (let index = 1; index < sorted.length; index++) {
 		const lower = sorted[index - 1]!

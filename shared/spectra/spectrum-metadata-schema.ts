@@ -25,7 +25,12 @@ export const SpectrumMetadataSchema = z.object({
 		.transform((value) => value ?? null),
 	technique: optionalText(100),
 	instrument: optionalText(200),
-	resolution: z.coerce.number().positive('Resolution is a positive number of cm⁻¹').max(64).optional().transform((value) => value ?? null),
+	resolution: z.coerce
+		.number()
+		.positive('Resolution is a positive number of cm⁻¹')
+		.max(64)
+		.optional()
+		.transform((value) => value ?? null),
 	acquiredOn: z.iso
 		.date({ message: 'Use a date like 2026-11-30' })
 		.optional()

@@ -278,7 +278,8 @@ function checkStep(
 	}
 
 	const person = actor === SYSTEM ? null : actor
-	const isAuthor = person !== null && (person.id === snapshot.authorId || (snapshot.coAuthorIds ?? []).includes(person.id))
+	const isAuthor =
+		person !== null && (person.id === snapshot.authorId || (snapshot.coAuthorIds ?? []).includes(person.id))
 	const ownSignature = person && snapshot.signatures.find((signature) => signature.userId === person.id)
 	const reviewed = currentSignature(snapshot, 'reviewed')
 	switch (action) {

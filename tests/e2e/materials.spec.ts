@@ -1,6 +1,8 @@
 import { expect, signIn, snapshot, test } from './fixtures.ts'
 
-test('[MAT-001] a wrong CAS check digit is refused with the message beside the field, and the typing survives', async ({ page }) => {
+test('[MAT-001] a wrong CAS check digit is refused with the message beside the field, and the typing survives', async ({
+	page,
+}) => {
 	await signIn(page, 'author@bandproof.test')
 	await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Materials' }).click()
 	await expect(page.getByRole('row', { name: /RM-0101/ })).toBeVisible()
@@ -24,7 +26,9 @@ test('[MAT-001] a wrong CAS check digit is refused with the message beside the f
 	await expect(page.getByText('Material registered')).toBeVisible()
 })
 
-test('[MAT-002] without JavaScript the server itself refuses the wrong check digit and keeps the values', async ({ browser }) => {
+test('[MAT-002] without JavaScript the server itself refuses the wrong check digit and keeps the values', async ({
+	browser,
+}) => {
 	const context = await browser.newContext({ javaScriptEnabled: false })
 	const page = await context.newPage()
 	await signIn(page, 'author@bandproof.test')

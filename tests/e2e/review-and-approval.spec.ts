@@ -12,13 +12,15 @@ const REVIEWER = 'reviewer@bandproof.test'
 const APPROVER = 'approver@bandproof.test'
 const ADMIN = 'admin@bandproof.test'
 
-const SUGGESTED_SCOPE = 'Identity of every incoming drum of ethyl acetate (Ph. Eur. grade) from approved suppliers, sampled per container before release to production.'
+const SUGGESTED_SCOPE =
+	'Identity of every incoming drum of ethyl acetate (Ph. Eur. grade) from approved suppliers, sampled per container before release to production.'
 const REJECTION_REASON = 'The scope must say that every drum is tested; see my redline on Scope.'
 const NEW_VERSION_REASON = 'Tighten the minimum correlation after the replicate study of the ethyl acetate reference.'
 
 /** "2026-03-02 14:05:09 UTC" and "2026-03-02 15:05:09 CET (Europe/Warsaw)", as the manifest prints them. */
 const UTC_STAMP = /\d{4}-\d{2}-\d{2} \d{2}:\d{2}:\d{2} UTC/
-const zoneStamp = (zone: string) => new RegExp(`\\d{4}-\\d{2}-\\d{2} \\d{2}:\\d{2}:\\d{2} \\S+ \\(${zone.replace('/', '\\/')}\\)`)
+const zoneStamp = (zone: string) =>
+	new RegExp(`\\d{4}-\\d{2}-\\d{2} \\d{2}:\\d{2}:\\d{2} \\S+ \\(${zone.replace('/', '\\/')}\\)`)
 
 /** The version page's <title> carries the document, version and state: "QC-IR-0004 v1 (In review) · Bandproof". */
 async function expectState(page: Page, version: number, state: string) {
@@ -83,14 +85,18 @@ async function signAsApproverEffectiveNow(page: Page, version: number) {
 	const dialog = page.getByRole('dialog', { name: 'Electronic signature: approved' })
 	// The effective date defaults to now in the approver's local time; "now" makes the version effective at once.
 	await expect(dialog.getByLabel('Effective from (your local time)')).not.toHaveValue('')
-	await expect(dialog.getByTestId('signature-statement')).toContainText(`I, Ilse Brandvold, approve version ${version} of specification ${DOC}`)
+	await expect(dialog.getByTestId('signature-statement')).toContainText(
+		`I, Ilse Brandvold, approve version ${version} of specification ${DOC}`,
+	)
 	await sign(page, 'approved')
 	await expectToast(page, 'Signed as approved')
 	// The loader applies due effective dates, so the page after the redirect already shows Effective.
 	await expectState(page, version, 'Effective')
 }
 
-test('[WF-E2E-001] a draft goes through redline, rejection, two signatures and a second version, and the mails go out', async ({ page }) => {
+test('[WF-E2E-001] a draft goes through redline, rejection, two signatures and a second version, and the mails go out', async ({
+	page,
+}) => {
 	test.setTimeout(300_000)
 
 	// 1. The author submits the ethyl acetate draft.
@@ -143,7 +149,9 @@ test('[WF-E2E-001] a draft goes through redline, rejection, two signatures and a
 	await openFromQueue(page, 1, 'Review')
 	const reviewDialog = page.getByRole('dialog', { name: 'Electronic signature: reviewed' })
 	await page.getByRole('button', { name: 'Sign as reviewed…' }).click()
-	await expect(reviewDialog.getByTestId('signature-statement')).toContainText(`I, Tomasz Wielgosz, have reviewed version 1 of specification ${DOC}`)
+	await expect(reviewDialog.getByTestId('signature-statement')).toContainText(
+		`I, Tomasz Wielgosz, have reviewed version 1 of specification ${DOC}`,
+	)
 	await snapshot(page, 'review-signing-dialog')
 	await sign(page, 'reviewed', 'not-my-password')
 	await expect(page.getByText('The password is not right; nothing was signed.')).toBeVisible()
@@ -201,7 +209,8 @@ test('[WF-E2E-001] a draft goes through redline, rejection, two signatures and a
 
 	// 8. Version 2 is effective and version 1 superseded, in the same step (issue 5 item 1).
 	const history = page.getByRole('region', { name: 'Versions' })
-	const row = (n: number) => history.getByRole('listitem').filter({ has: page.getByRole('link', { name: `Version ${n}`, exact: true }) })
+	const row = (n: number) =>
+		history.getByRole('listitem').filter({ has: page.getByRole('link', { name: `Version ${n}`, exact: true }) })
 	await expect(row(2)).toContainText('Effective')
 	await expect(row(1)).toContainText('Superseded')
 	await expect(row(2)).toContainText(NEW_VERSION_REASON)
@@ -210,8 +219,12 @@ test('[WF-E2E-001] a draft goes through redline, rejection, two signatures and a
 	// 9. The tracked changes show the new minimum correlation.
 	await row(2).getByRole('link', { name: 'Changes from version 1' }).click()
 	await expect(page.getByRole('heading', { level: 1, name: `Changes in ${DOC}` })).toBeVisible()
-	await expect(page.getByText(`Version 1 (Superseded) against version 2 (Effective) — reason: ${NEW_VERSION_REASON}`)).toBeVisible()
-	const change = page.getByTestId('diff-field').filter({ has: page.getByRole('rowheader', { name: 'Minimum correlation', exact: true }) })
+	await expect(
+		page.getByText(`Version 1 (Superseded) against version 2 (Effective) — reason: ${NEW_VERSION_REASON}`),
+	).toBeVisible()
+	const change = page
+		.getByTestId('diff-field')
+		.filter({ has: page.getByRole('rowheader', { name: 'Minimum correlation', exact: true }) })
 	await expect(change).toHaveCount(1)
 	await expect(change.locator('del')).toHaveText('0.95')
 	await expect(change.locator('ins')).toHaveText('0.97')
@@ -246,24 +259,37 @@ test('[WF-E2E-001] a draft goes through redline, rejection, two signatures and a
 			await expect(mailRow.first(), mail.subject).toContainText('Sent', { timeout: 1_000 })
 		}
 		const received = page.getByRole('list', { name: /newest messages received/ })
-		for (const mail of expectedMail) await expect(received.getByRole('listitem').filter({ hasText: mail.subject }).first(), mail.subject).toBeVisible({ timeout: 1_000 })
+		for (const mail of expectedMail)
+			await expect(received.getByRole('listitem').filter({ hasText: mail.subject }).first(), mail.subject).toBeVisible({
+				timeout: 1_000,
+			})
 	}).toPass({ timeout: 45_000, intervals: [1_000, 2_000, 5_000] })
 
 	// The rejection mail carries the reason as the author received it.
-	const rejection = page.getByRole('list', { name: /newest messages received/ }).getByRole('listitem').filter({ hasText: `Returned to draft: ${DOC} version 1` })
+	const rejection = page
+		.getByRole('list', { name: /newest messages received/ })
+		.getByRole('listitem')
+		.filter({ hasText: `Returned to draft: ${DOC} version 1` })
 	await rejection.getByText(`Returned to draft: ${DOC} version 1`).click()
 	await expect(rejection).toContainText(REJECTION_REASON)
 	await snapshot(page, 'review-outgoing-mail')
 })
 
-test('[WF-E2E-002] the reviewer cannot sign the acetylsalicylic acid version while its redline is open', async ({ page }) => {
+test('[WF-E2E-002] the reviewer cannot sign the acetylsalicylic acid version while its redline is open', async ({
+	page,
+}) => {
 	await signIn(page, REVIEWER)
-	await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: /My queue/ }).click()
+	await page
+		.getByRole('navigation', { name: 'Main' })
+		.getByRole('link', { name: /My queue/ })
+		.click()
 	const item = page.getByTestId('queue-item').filter({ hasText: 'QC-IR-0003 v1' })
 	await expect(item).toContainText('Review')
 	await expect(item).toContainText('1 open redline')
 	await item.getByRole('link', { name: 'QC-IR-0003 v1' }).click()
-	await expect(page.getByRole('heading', { level: 1, name: 'Identification of acetylsalicylic acid by ATR-FTIR' })).toBeVisible()
+	await expect(
+		page.getByRole('heading', { level: 1, name: 'Identification of acetylsalicylic acid by ATR-FTIR' }),
+	).toBeVisible()
 	// Issue 5 item 2 / PRODUCT.md §3: a version with open redlines cannot be signed; the disabled button says why.
 	await expect(page.getByTestId('redline').filter({ hasText: 'Sample preparation' })).toContainText('Open')
 	await expect(page.getByRole('button', { name: 'Sign as reviewed…' })).toBeDisabled()

@@ -1,11 +1,20 @@
 import { expect, signIn, signOut, snapshot, test } from './fixtures.ts'
 
 const NAVIGATION_BY_ROLE = {
-	'author@bandproof.test': { sees: ['Materials', 'Spectra', 'Specifications', 'My queue'], hidden: ['Users and roles', 'Inspection'] },
+	'author@bandproof.test': {
+		sees: ['Materials', 'Spectra', 'Specifications', 'My queue'],
+		hidden: ['Users and roles', 'Inspection'],
+	},
 	'reviewer@bandproof.test': { sees: ['Materials', 'My queue'], hidden: ['Users and roles', 'Specifications'] },
 	'approver@bandproof.test': { sees: ['Materials', 'My queue', 'Audit trail'], hidden: ['Users and roles'] },
-	'inspector@bandproof.test': { sees: ['Inspection', 'Audit trail'], hidden: ['Materials', 'Users and roles', 'My queue'] },
-	'admin@bandproof.test': { sees: ['Materials', 'Audit trail', 'Users and roles', 'Outgoing mail'], hidden: ['Inspection'] },
+	'inspector@bandproof.test': {
+		sees: ['Inspection', 'Audit trail'],
+		hidden: ['Materials', 'Users and roles', 'My queue'],
+	},
+	'admin@bandproof.test': {
+		sees: ['Materials', 'Audit trail', 'Users and roles', 'Outgoing mail'],
+		hidden: ['Inspection'],
+	},
 } as const
 
 for (const [email, expected] of Object.entries(NAVIGATION_BY_ROLE)) {

@@ -6,7 +6,9 @@ import { expect, signIn, snapshot, test } from './fixtures.ts'
 // measurement in different encodings; 3-chloroaniline is a positional isomer ("must not match").
 const spectrum = (relative: string) => path.join(referenceSpectraDir(), relative)
 
-test('[WS-001] an author goes from an empty library to a draft with reference, band table and evidence', async ({ page }) => {
+test('[WS-001] an author goes from an empty library to a draft with reference, band table and evidence', async ({
+	page,
+}) => {
 	test.setTimeout(180_000)
 	await signIn(page, 'author@bandproof.test')
 
@@ -20,11 +22,13 @@ test('[WS-001] an author goes from an empty library to a draft with reference, b
 
 	// Upload a batch with one broken file: the broken one is refused with the importer's message, the others are stored.
 	await page.goto('/spectra/upload')
-	await page.getByLabel('Spectrum files').setInputFiles([
-		spectrum('compounds/4_chloroaniline_solid_pe1000.jdx'),
-		spectrum('format/malformed/ycheck_mismatch.jdx'),
-		spectrum('compounds/3_chloroaniline_pe1000.jdx'),
-	])
+	await page
+		.getByLabel('Spectrum files')
+		.setInputFiles([
+			spectrum('compounds/4_chloroaniline_solid_pe1000.jdx'),
+			spectrum('format/malformed/ycheck_mismatch.jdx'),
+			spectrum('compounds/3_chloroaniline_pe1000.jdx'),
+		])
 	await page.getByLabel('Material', { exact: true }).selectOption({ label: 'RM-0401 · 4-Chloroaniline' })
 	await page.getByLabel('Reference standard lot').fill('CV-RS-0401-02')
 	await page.getByRole('button', { name: 'Upload' }).click()
@@ -37,7 +41,12 @@ test('[WS-001] an author goes from an empty library to a draft with reference, b
 	await snapshot(page, 'upload-results')
 
 	// The same bytes again are recognised, not stored twice; the sample to compare is a second encoding of the reference.
-	await page.getByLabel('Spectrum files').setInputFiles([spectrum('compounds/4_chloroaniline_solid_pe1000.jdx'), spectrum('compounds/4_chloroaniline_solid_pe1000_single.jdx')])
+	await page
+		.getByLabel('Spectrum files')
+		.setInputFiles([
+			spectrum('compounds/4_chloroaniline_solid_pe1000.jdx'),
+			spectrum('compounds/4_chloroaniline_solid_pe1000_single.jdx'),
+		])
 	await page.getByLabel('Purpose').selectOption('sample')
 	await page.getByRole('button', { name: 'Upload' }).click()
 	await expect(results.locator('li', { hasText: '4_chloroaniline_solid_pe1000.jdx' })).toContainText('Already stored')
@@ -75,12 +84,16 @@ test('[WS-001] an author goes from an empty library to a draft with reference, b
 	await snapshot(page, 'workspace-draft')
 
 	// A conforming comparison (same measurement, other encoding) and a non-conforming one (positional isomer).
-	await page.getByLabel('Compare a stored spectrum with the reference').selectOption({ label: '4_chloroaniline_solid_pe1000_single.jdx (RM-0401)' })
+	await page
+		.getByLabel('Compare a stored spectrum with the reference')
+		.selectOption({ label: '4_chloroaniline_solid_pe1000_single.jdx (RM-0401)' })
 	await page.getByRole('button', { name: 'Compare' }).click()
 	await expect(page.getByText('Comparison recorded')).toBeVisible()
 	const first = page.getByTestId('evidence-item').first()
 	await expect(first).toContainText('Conforms')
-	await page.getByLabel('Compare a stored spectrum with the reference').selectOption({ label: '3_chloroaniline_pe1000.jdx (RM-0401)' })
+	await page
+		.getByLabel('Compare a stored spectrum with the reference')
+		.selectOption({ label: '3_chloroaniline_pe1000.jdx (RM-0401)' })
 	await page.getByRole('button', { name: 'Compare' }).click()
 	await expect(page.getByTestId('evidence-item').first()).toContainText('Does not conform')
 	await page.getByTestId('evidence-item').first().getByRole('button', { name: 'Show the overlay' }).click()

@@ -14,11 +14,16 @@ process.env.BETTER_AUTH_URL ??= 'http://localhost:3999'
 
 async function signIn(email: string, password: string) {
 	try {
-		const { headers } = await auth().api.signInEmail({ body: { email, password }, headers: new Headers(), returnHeaders: true })
+		const { headers } = await auth().api.signInEmail({
+			body: { email, password },
+			headers: new Headers(),
+			returnHeaders: true,
+		})
 		const cookie = headers.get('set-cookie')?.split(';')[0] ?? ''
 		return { ok: true as const, cookie }
 	} catch (error) {
-		if (error instanceof APIError) return { ok: false as const, status: error.statusCode, message: error.body?.message ?? '' }
+		if (error instanceof APIError)
+			return { ok: false as const, status: error.statusCode, message: error.body?.message ?? '' }
 		throw error
 	}
 }
@@ -59,7 +64,10 @@ test('[AUTH-012] five wrong passwords lock the account; the right one is then re
 
 test('[AUTH-013] a lock that has run out lets the right password in and resets the count', async () => {
 	const user = await makeActor(db, 'author')
-	await db.update(users).set({ failedSignIns: 5, lockedUntil: new Date(Date.now() - 1000) }).where(eq(users.id, user.id))
+	await db
+		.update(users)
+		.set({ failedSignIns: 5, lockedUntil: new Date(Date.now() - 1000) })
+		.where(eq(users.id, user.id))
 	expect((await signIn(user.email, TEST_PASSWORD)).ok).toBe(true)
 	const [after] = await db.select().from(users).where(eq(users.id, user.id))
 	expect(after).toMatchObject({ failedSignIns: 0, lockedUntil: null })
@@ -70,7 +78,12 @@ test('[AUTH-014] a deactivated account cannot sign in and its open sessions end 
 	const user = await makeActor(db, 'reviewer')
 	const signedIn = await signIn(user.email, TEST_PASSWORD)
 	expect(signedIn.ok).toBe(true)
-	const outcome = await deactivateUser(db, { actor: admin, userId: user.id, reason: 'Left the company', now: new Date() })
+	const outcome = await deactivateUser(db, {
+		actor: admin,
+		userId: user.id,
+		reason: 'Left the company',
+		now: new Date(),
+	})
 	expect(outcome.ok).toBe(true)
 	const request = new Request('http://localhost:3999/', { headers: { cookie: signedIn.ok ? signedIn.cookie : '' } })
 	expect(await resolveActor(request)).toBeNull()
@@ -83,13 +96,17 @@ test('[AUTH-014] a deactivated account cannot sign in and its open sessions end 
 test('[AUTH-015] an idle session expires: past its expiry it no longer resolves', async () => {
 	const user = await makeActor(db, 'author')
 	const signedIn = await signIn(user.email, TEST_PASSWORD)
-	const request = () => new Request('http://localhost:3999/', { headers: { cookie: signedIn.ok ? signedIn.cookie : '' } })
+	const request = () =>
+		new Request('http://localhost:3999/', { headers: { cookie: signedIn.ok ? signedIn.cookie : '' } })
 	const [session] = await db.select().from(sessions).where(eq(sessions.userId, user.id))
 	// Idle expiry: 30 minutes by default (SESSION_IDLE_MINUTES; common practice, no source).
 	const minutes = (session!.expiresAt.getTime() - session!.createdAt.getTime()) / 60_000
 	expect(minutes).toBeCloseTo(30, 0)
 	expect(await resolveActor(request())).not.toBeNull()
-	await db.update(sessions).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(sessions.userId, user.id))
+	await db
+		.update(sessions)
+		.set({ expiresAt: new Date(Date.now() - 1000) })
+		.where(eq(sessions.userId, user.id))
 	expect(await resolveActor(request())).toBeNull()
 })
 
@@ -109,13 +126,22 @@ test('[AUTH-016] authorize answers 403 on the server for a role without the perm
 test('[AUTH-017] role changes are audited with the roles before and after; an admin cannot drop their own admin role', async () => {
 	const admin = await makeActor(db, 'admin')
 	const user = await makeActor(db, 'author')
-	const changed = await setUserRoles(db, { actor: admin, userId: user.id, roles: ['author', 'reviewer'], now: new Date() })
+	const changed = await setUserRoles(db, {
+		actor: admin,
+		userId: user.id,
+		roles: ['author', 'reviewer'],
+		now: new Date(),
+	})
 	expect(changed).toEqual({ ok: true, value: { changed: true } })
 	const [event] = await db
 		.select()
 		.from(auditEvents)
 		.where(and(eq(auditEvents.entityId, user.id), eq(auditEvents.action, 'user.roles-changed')))
-	expect(event).toMatchObject({ actorLabel: admin.email, before: { roles: ['author'] }, after: { roles: ['author', 'reviewer'] } })
+	expect(event).toMatchObject({
+		actorLabel: admin.email,
+		before: { roles: ['author'] },
+		after: { roles: ['author', 'reviewer'] },
+	})
 	const selfDemotion = await setUserRoles(db, { actor: admin, userId: admin.id, roles: ['author'], now: new Date() })
 	expect(selfDemotion.ok).toBe(false)
 })

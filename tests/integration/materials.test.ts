@@ -7,7 +7,14 @@ import { listMaterials, MaterialListQuerySchema } from '#app/.server/queries/mat
 import { createMaterial, updateMaterial } from '#app/.server/services/materials.ts'
 import { auditActionsFor, makeActor } from '#tests/support/factories.ts'
 
-const aspirin = { code: 'RM-0001', name: 'Acetylsalicylic acid', synonyms: 'Aspirin', casNumber: '50-78-2', formula: 'C9H8O4', grade: 'Ph. Eur.' }
+const aspirin = {
+	code: 'RM-0001',
+	name: 'Acetylsalicylic acid',
+	synonyms: 'Aspirin',
+	casNumber: '50-78-2',
+	formula: 'C9H8O4',
+	grade: 'Ph. Eur.',
+}
 
 test('[MAT-010] a material is created with its audit event in the same transaction', async () => {
 	const author = await makeActor(db, 'author')
@@ -31,9 +38,21 @@ test('[MAT-012] optimistic locking: the second of two edits from the same revisi
 	const author = await makeActor(db, 'author')
 	const created = await createMaterial(db, { actor: author, values: aspirin, now: new Date() })
 	const id = created.ok ? created.value.id : ''
-	const first = await updateMaterial(db, { actor: author, id, revision: 1, values: { ...aspirin, grade: 'USP' }, now: new Date() })
+	const first = await updateMaterial(db, {
+		actor: author,
+		id,
+		revision: 1,
+		values: { ...aspirin, grade: 'USP' },
+		now: new Date(),
+	})
 	expect(first).toEqual({ ok: true, value: { revision: 2 } })
-	const second = await updateMaterial(db, { actor: author, id, revision: 1, values: { ...aspirin, name: 'Changed' }, now: new Date() })
+	const second = await updateMaterial(db, {
+		actor: author,
+		id,
+		revision: 1,
+		values: { ...aspirin, name: 'Changed' },
+		now: new Date(),
+	})
 	expect(second).toMatchObject({ ok: false, error: { status: 409 } })
 	const [row] = await db.select().from(materials).where(eq(materials.id, id))
 	expect(row).toMatchObject({ name: 'Acetylsalicylic acid', grade: 'USP', revision: 2 })
@@ -46,7 +65,12 @@ test('[MAT-013] the list filters by text (synonyms too), sorts, and pages on the
 	for (let index = 0; index < 25; index++) {
 		await createMaterial(db, {
 			actor: author,
-			values: { code: `RM-${String(index).padStart(3, '0')}`, name: `Material ${index}`, synonyms: index === 7 ? 'Lucky seven' : '', grade: index % 2 ? 'USP' : 'Ph. Eur.' },
+			values: {
+				code: `RM-${String(index).padStart(3, '0')}`,
+				name: `Material ${index}`,
+				synonyms: index === 7 ? 'Lucky seven' : '',
+				grade: index % 2 ? 'USP' : 'Ph. Eur.',
+			},
 			now: new Date(),
 		})
 	}
@@ -68,8 +92,12 @@ test('[AUD-001] PostgreSQL itself refuses UPDATE and DELETE on audit events', as
 	const author = await makeActor(db, 'author')
 	await createMaterial(db, { actor: author, values: aspirin, now: new Date() })
 	const refusal = /audit events are append-only/
-	await expect(db.execute(sql`update audit_events set action = 'tampered'`)).rejects.toMatchObject({ cause: { message: expect.stringMatching(refusal) } })
-	await expect(db.execute(sql`delete from audit_events`)).rejects.toMatchObject({ cause: { message: expect.stringMatching(refusal) } })
+	await expect(db.execute(sql`update audit_events set action = 'tampered'`)).rejects.toMatchObject({
+		cause: { message: expect.stringMatching(refusal) },
+	})
+	await expect(db.execute(sql`delete from audit_events`)).rejects.toMatchObject({
+		cause: { message: expect.stringMatching(refusal) },
+	})
 	const rows = await db.select().from(auditEvents)
 	expect(rows.length).toBeGreaterThan(0)
 	expect(rows.some((row) => row.action === 'tampered')).toBe(false)

@@ -29,7 +29,11 @@ export async function makeActor(db: Db, ...roles: Array<Role>): Promise<Actor> {
 
 /** The audit actions recorded for one entity, oldest first. */
 export async function auditActionsFor(db: Db, entityId: string): Promise<Array<string>> {
-	const rows = await db.select({ action: auditEvents.action }).from(auditEvents).where(eq(auditEvents.entityId, entityId)).orderBy(auditEvents.id)
+	const rows = await db
+		.select({ action: auditEvents.action })
+		.from(auditEvents)
+		.where(eq(auditEvents.entityId, entityId))
+		.orderBy(auditEvents.id)
 	return rows.map((row) => row.action)
 }
 

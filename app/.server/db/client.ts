@@ -9,7 +9,16 @@ import * as roles from './schema/roles.ts'
 import * as specifications from './schema/specifications.ts'
 import * as spectra from './schema/spectra.ts'
 
-export const schema = { ...auth, ...roles, ...materials, ...audit, ...spectra, ...specifications, ...outbox }
+export const schema = {
+	...auth,
+	...roles,
+	...materials,
+	...audit,
+	...spectra,
+	...specifications,
+	...outbox,
+	...dossiers,
+}
 
 function connect(url: string) {
 	const client = postgres(url, { max: 10, onnotice: () => {} })

@@ -23,7 +23,8 @@ function auditFilters(query: AuditQuery): SQL | undefined {
 	if (query.entityType) filters.push(eq(auditEvents.entityType, query.entityType))
 	if (query.entityId) filters.push(eq(auditEvents.entityId, query.entityId))
 	if (query.since) filters.push(gte(auditEvents.occurredAt, new Date(`${query.since}T00:00:00Z`)))
-	if (query.until) filters.push(lt(auditEvents.occurredAt, new Date(new Date(`${query.until}T00:00:00Z`).getTime() + 86_400_000)))
+	if (query.until)
+		filters.push(lt(auditEvents.occurredAt, new Date(new Date(`${query.until}T00:00:00Z`).getTime() + 86_400_000)))
 	return filters.length ? and(...filters) : undefined
 }
 

@@ -17,7 +17,13 @@ export type QueueItem = {
 	since: string
 }
 
-const TASK_ORDER: Record<QueueItem['task'], number> = { approve: 0, review: 1, 'revise-after-rejection': 2, 'answer-redlines': 3, 'finish-draft': 4 }
+const TASK_ORDER: Record<QueueItem['task'], number> = {
+	approve: 0,
+	review: 1,
+	'revise-after-rejection': 2,
+	'answer-redlines': 3,
+	'finish-draft': 4,
+}
 
 /**
  * What waits for this person: drafts they work on (and why), versions to review, versions to approve. Segregation
@@ -47,19 +53,45 @@ export async function listQueue(db: Db, actor: Actor): Promise<Array<QueueItem>>
 	if (rows.length === 0) return []
 	const ids = rows.map((row) => row.versionId)
 	const [current, open] = await Promise.all([
-		db.select({ versionId: signatures.versionId, signerId: signatures.signerId, meaning: signatures.meaning }).from(signatures).where(and(inArray(signatures.versionId, ids), isNull(signatures.voidedAt))),
-		db.select({ versionId: redlines.versionId }).from(redlines).where(and(inArray(redlines.versionId, ids), eq(redlines.status, 'open'), isNull(redlines.parentId))),
+		db
+			.select({ versionId: signatures.versionId, signerId: signatures.signerId, meaning: signatures.meaning })
+			.from(signatures)
+			.where(and(inArray(signatures.versionId, ids), isNull(signatures.voidedAt))),
+		db
+			.select({ versionId: redlines.versionId })
+			.from(redlines)
+			.where(and(inArray(redlines.versionId, ids), eq(redlines.status, 'open'), isNull(redlines.parentId))),
 	])
 	const items: Array<QueueItem> = []
 	for (const row of rows) {
-		const base = { versionId: row.versionId, specificationId: row.specificationId, documentNumber: row.documentNumber, title: row.title, materialName: row.materialName, versionNumber: row.versionNumber, state: row.state }
+		const base = {
+			versionId: row.versionId,
+			specificationId: row.specificationId,
+			documentNumber: row.documentNumber,
+			title: row.title,
+			materialName: row.materialName,
+			versionNumber: row.versionNumber,
+			state: row.state,
+		}
 		const edited = row.editorIds.includes(actor.id) || row.authorId === actor.id
 		const signed = current.filter((signature) => signature.versionId === row.versionId)
 		const openRedlines = open.filter((redline) => redline.versionId === row.versionId).length
 		if (row.state === 'draft' && edited && can(actor, 'spec:edit')) {
 			const since = row.updatedAt.toISOString()
-			if (row.lastRejectionReason) items.push({ ...base, task: 'revise-after-rejection', detail: `Returned to draft: ${row.lastRejectionReason}`, since })
-			else if (openRedlines) items.push({ ...base, task: 'answer-redlines', detail: `${openRedlines} open redline${openRedlines === 1 ? '' : 's'}`, since })
+			if (row.lastRejectionReason)
+				items.push({
+					...base,
+					task: 'revise-after-rejection',
+					detail: `Returned to draft: ${row.lastRejectionReason}`,
+					since,
+				})
+			else if (openRedlines)
+				items.push({
+					...base,
+					task: 'answer-redlines',
+					detail: `${openRedlines} open redline${openRedlines === 1 ? '' : 's'}`,
+					since,
+				})
 			else items.push({ ...base, task: 'finish-draft', detail: 'Draft in progress', since })
 			continue
 		}
@@ -67,9 +99,28 @@ export async function listQueue(db: Db, actor: Actor): Promise<Array<QueueItem>>
 		const since = (row.submittedAt ?? row.updatedAt).toISOString()
 		const reviewed = signed.find((signature) => signature.meaning === 'reviewed')
 		if (!reviewed && can(actor, 'spec-version:sign') && actor.roles.includes('reviewer')) {
-			items.push({ ...base, task: 'review', detail: openRedlines ? `Waiting for review · ${openRedlines} open redline${openRedlines === 1 ? '' : 's'}` : 'Waiting for review', since })
-		} else if (reviewed && reviewed.signerId !== actor.id && actor.roles.includes('approver') && !signed.some((signature) => signature.meaning === 'approved')) {
-			items.push({ ...base, task: 'approve', detail: openRedlines ? `Reviewed · ${openRedlines} open redline${openRedlines === 1 ? '' : 's'} to close first` : 'Reviewed, ready for approval', since })
+			items.push({
+				...base,
+				task: 'review',
+				detail: openRedlines
+					? `Waiting for review · ${openRedlines} open redline${openRedlines === 1 ? '' : 's'}`
+					: 'Waiting for review',
+				since,
+			})
+		} else if (
+			reviewed &&
+			reviewed.signerId !== actor.id &&
+			actor.roles.includes('approver') &&
+			!signed.some((signature) => signature.meaning === 'approved')
+		) {
+			items.push({
+				...base,
+				task: 'approve',
+				detail: openRedlines
+					? `Reviewed · ${openRedlines} open redline${openRedlines === 1 ? '' : 's'} to close first`
+					: 'Reviewed, ready for approval',
+				since,
+			})
 		}
 	}
 	return items.sort((a, b) => TASK_ORDER[a.task] - TASK_ORDER[b.task] || a.since.localeCompare(b.since))

@@ -22,7 +22,9 @@ export async function listSpecifications(db: Db, query: SpecificationListQuery) 
 	const latest = db
 		.select({
 			specificationId: specVersions.specificationId,
-			versionId: sql<string>`(array_agg(${specVersions.id} order by ${specVersions.versionNumber} desc))[1]`.as('version_id'),
+			versionId: sql<string>`(array_agg(${specVersions.id} order by ${specVersions.versionNumber} desc))[1]`.as(
+				'version_id',
+			),
 		})
 		.from(specVersions)
 		.groupBy(specVersions.specificationId)
@@ -30,7 +32,12 @@ export async function listSpecifications(db: Db, query: SpecificationListQuery) 
 	const filters: Array<SQL> = []
 	if (query.q) {
 		const pattern = `%${query.q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`
-		const match = or(ilike(specifications.documentNumber, pattern), ilike(specifications.title, pattern), ilike(materials.name, pattern), ilike(materials.code, pattern))
+		const match = or(
+			ilike(specifications.documentNumber, pattern),
+			ilike(specifications.title, pattern),
+			ilike(materials.name, pattern),
+			ilike(materials.code, pattern),
+		)
 		if (match) filters.push(match)
 	}
 	if (query.state) filters.push(eq(specVersions.state, query.state))
@@ -69,7 +76,11 @@ export async function listSpecifications(db: Db, query: SpecificationListQuery) 
 			.innerJoin(latest, eq(latest.specificationId, specifications.id))
 			.innerJoin(specVersions, eq(specVersions.id, latest.versionId))
 			.where(where),
-		db.selectDistinct({ id: users.id, name: users.name }).from(specifications).innerJoin(users, eq(users.id, specifications.ownerId)).orderBy(asc(users.name)),
+		db
+			.selectDistinct({ id: users.id, name: users.name })
+			.from(specifications)
+			.innerJoin(users, eq(users.id, specifications.ownerId))
+			.orderBy(asc(users.name)),
 	])
 	const total = totals[0]?.total ?? 0
 	return {
@@ -136,7 +147,13 @@ export async function getVersionWorkspace(db: Db, specificationId: string, versi
 			.orderBy(desc(evidence.createdAt)),
 		content.referenceSpectrumId
 			? db
-					.select({ id: spectra.id, fileName: spectra.fileName, sha256: spectra.sha256, minWavenumber: spectra.minWavenumber, maxWavenumber: spectra.maxWavenumber })
+					.select({
+						id: spectra.id,
+						fileName: spectra.fileName,
+						sha256: spectra.sha256,
+						minWavenumber: spectra.minWavenumber,
+						maxWavenumber: spectra.maxWavenumber,
+					})
 					.from(spectra)
 					.where(eq(spectra.id, content.referenceSpectrumId))
 					.then((found) => found[0] ?? null)
@@ -147,7 +164,12 @@ export async function getVersionWorkspace(db: Db, specificationId: string, versi
 			id: row.specification.id,
 			documentNumber: row.specification.documentNumber,
 			title: row.specification.title,
-			material: { id: row.material.id, code: row.material.code, name: row.material.name, casNumber: row.material.casNumber },
+			material: {
+				id: row.material.id,
+				code: row.material.code,
+				name: row.material.name,
+				casNumber: row.material.casNumber,
+			},
 		},
 		version: {
 			id: row.version.id,
@@ -166,7 +188,11 @@ export async function getVersionWorkspace(db: Db, specificationId: string, versi
 		},
 		content,
 		reference,
-		versions: versions.map((version) => ({ ...version, effectiveAt: version.effectiveAt?.toISOString() ?? null, updatedAt: version.updatedAt.toISOString() })),
+		versions: versions.map((version) => ({
+			...version,
+			effectiveAt: version.effectiveAt?.toISOString() ?? null,
+			updatedAt: version.updatedAt.toISOString(),
+		})),
 		evidence: evidenceRows.map((item) => ({ ...item, createdAt: item.createdAt.toISOString() })),
 	}
 }

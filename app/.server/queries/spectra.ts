@@ -24,7 +24,13 @@ export async function listSpectra(db: Db, query: SpectrumListQuery) {
 	const filters: Array<SQL> = []
 	if (query.q) {
 		const pattern = `%${escapeLike(query.q)}%`
-		const match = or(ilike(spectra.fileName, pattern), ilike(spectra.title, pattern), ilike(spectra.referenceStandardLot, pattern), ilike(materials.name, pattern), ilike(materials.code, pattern))
+		const match = or(
+			ilike(spectra.fileName, pattern),
+			ilike(spectra.title, pattern),
+			ilike(spectra.referenceStandardLot, pattern),
+			ilike(materials.name, pattern),
+			ilike(materials.code, pattern),
+		)
 		if (match) filters.push(match)
 	}
 	if (query.purpose) filters.push(eq(spectra.purpose, query.purpose))
@@ -110,5 +116,8 @@ export async function getSpectrumRecord(db: Db, id: string) {
 
 /** Materials for pickers: code and name, sorted by code. */
 export async function listMaterialChoices(db: Db) {
-	return db.select({ id: materials.id, code: materials.code, name: materials.name }).from(materials).orderBy(asc(materials.code))
+	return db
+		.select({ id: materials.id, code: materials.code, name: materials.name })
+		.from(materials)
+		.orderBy(asc(materials.code))
 }

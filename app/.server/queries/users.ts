@@ -20,7 +20,10 @@ export async function listUsers(db: Db, now: Date) {
 		id: user.id,
 		name: user.name,
 		email: user.email,
-		roles: roles.filter((row) => row.userId === user.id).map((row) => row.role as Role).sort(),
+		roles: roles
+			.filter((row) => row.userId === user.id)
+			.map((row) => row.role as Role)
+			.sort(),
 		status: statusOf(user, now),
 		lockedUntil: user.lockedUntil?.toISOString() ?? null,
 	}))

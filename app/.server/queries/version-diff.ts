@@ -15,15 +15,25 @@ async function diffable(db: Db, specificationId: string, versionId: string) {
 	if (!row) return null
 	const content = parseContent(row.content)
 	const [reference] = content.referenceSpectrumId
-		? await db.select({ id: spectra.id, sha256: spectra.sha256, fileName: spectra.fileName }).from(spectra).where(eq(spectra.id, content.referenceSpectrumId))
+		? await db
+				.select({ id: spectra.id, sha256: spectra.sha256, fileName: spectra.fileName })
+				.from(spectra)
+				.where(eq(spectra.id, content.referenceSpectrumId))
 		: []
-	const version: DiffableVersion = { ...content, versionNumber: row.versionNumber, referenceSpectrum: reference ? { sha256: reference.sha256, fileName: reference.fileName } : null }
+	const version: DiffableVersion = {
+		...content,
+		versionNumber: row.versionNumber,
+		referenceSpectrum: reference ? { sha256: reference.sha256, fileName: reference.fileName } : null,
+	}
 	return { version, referenceId: reference?.id ?? null, changeReason: row.changeReason, state: row.state }
 }
 
 /** The tracked changes between two versions of one specification (older first), or null when either is unknown. */
 export async function getVersionDiff(db: Db, specificationId: string, fromVersionId: string, toVersionId: string) {
-	const [from, to] = await Promise.all([diffable(db, specificationId, fromVersionId), diffable(db, specificationId, toVersionId)])
+	const [from, to] = await Promise.all([
+		diffable(db, specificationId, fromVersionId),
+		diffable(db, specificationId, toVersionId),
+	])
 	if (!from || !to) return null
 	const [older, newer] = from.version.versionNumber <= to.version.versionNumber ? [from, to] : [to, from]
 	const diff = diffVersions(older.version, newer.version)
@@ -31,6 +41,11 @@ export async function getVersionDiff(db: Db, specificationId: string, fromVersio
 		diff,
 		summary: summarizeChanges(diff),
 		older: { versionNumber: older.version.versionNumber, state: older.state, referenceId: older.referenceId },
-		newer: { versionNumber: newer.version.versionNumber, state: newer.state, referenceId: newer.referenceId, changeReason: newer.changeReason },
+		newer: {
+			versionNumber: newer.version.versionNumber,
+			state: newer.state,
+			referenceId: newer.referenceId,
+			changeReason: newer.changeReason,
+		},
 	}
 }

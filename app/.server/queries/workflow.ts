@@ -31,11 +31,17 @@ export async function getWorkflowView(db: Db, versionId: string, actor: Actor, n
 		.from(redlines)
 		.where(eq(redlines.versionId, versionId))
 		.orderBy(asc(redlines.createdAt))
-	const names = new Map((await db.select({ id: users.id, name: users.name }).from(users)).map((user) => [user.id, user.name]))
+	const names = new Map(
+		(await db.select({ id: users.id, name: users.name }).from(users)).map((user) => [user.id, user.name]),
+	)
 	const [signatureRows, hashed, actorRow] = await Promise.all([
 		db.select().from(signatures).where(eq(signatures.versionId, versionId)).orderBy(asc(signatures.signedAt)),
 		versionContentHash(db, versionId),
-		db.select({ name: users.name }).from(users).where(eq(users.id, actor.id)).then((rows) => rows[0]),
+		db
+			.select({ name: users.name })
+			.from(users)
+			.where(eq(users.id, actor.id))
+			.then((rows) => rows[0]),
 	])
 	const subject = { documentNumber: specification.documentNumber, versionNumber: version.versionNumber }
 	const printedName = actorRow?.name ?? actor.name
@@ -55,7 +61,12 @@ export async function getWorkflowView(db: Db, versionId: string, actor: Actor, n
 			resolution: row.resolution,
 			replies: redlineRows
 				.filter((reply) => reply.parentId === row.id)
-				.map((reply) => ({ id: reply.id, body: reply.body, authorName: names.get(reply.authorId) ?? 'unknown', createdAt: reply.createdAt.toISOString() })),
+				.map((reply) => ({
+					id: reply.id,
+					body: reply.body,
+					authorName: names.get(reply.authorId) ?? 'unknown',
+					createdAt: reply.createdAt.toISOString(),
+				})),
 		}))
 	return {
 		state: snapshot.state,
@@ -71,7 +82,10 @@ export async function getWorkflowView(db: Db, versionId: string, actor: Actor, n
 			voided: row.voidedAt !== null,
 			contentSha256: row.contentSha256,
 			authentication: row.authentication,
-			...signatureManifestation({ meaning: row.meaning, signedAt: row.signedAt, timeZone: row.signerTimeZone }, { ...subject, printedName: row.printedName, contentHash: row.contentSha256 }),
+			...signatureManifestation(
+				{ meaning: row.meaning, signedAt: row.signedAt, timeZone: row.signerTimeZone },
+				{ ...subject, printedName: row.printedName, contentHash: row.contentSha256 },
+			),
 			matchesCurrentContent: hashed ? hashed.hash === row.contentSha256 : false,
 		})),
 		redlines: threads,
@@ -81,6 +95,9 @@ export async function getWorkflowView(db: Db, versionId: string, actor: Actor, n
 
 /** Open redlines of a version (for counting in lists). */
 export async function countOpenRedlines(db: Db, versionId: string): Promise<number> {
-	const rows = await db.select({ id: redlines.id }).from(redlines).where(and(eq(redlines.versionId, versionId), eq(redlines.status, 'open')))
+	const rows = await db
+		.select({ id: redlines.id })
+		.from(redlines)
+		.where(and(eq(redlines.versionId, versionId), eq(redlines.status, 'open')))
 	return rows.length
 }

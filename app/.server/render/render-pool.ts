@@ -14,13 +14,16 @@ function renderer(): Worker {
 	// NOTE: the worker runs the TypeScript sources through tsx (a dependency), from the project root, so the same
 	// file serves the dev server, the production build and the tests.
 	const started = new Worker(path.resolve(process.cwd(), 'app/.server/render/render-worker.mjs'))
-	started.on('message', (message: { id: number; ok: true; rendered: RenderedDossier } | { id: number; ok: false; message: string }) => {
-		const job = pending.get(message.id)
-		if (!job) return
-		pending.delete(message.id)
-		if (message.ok) job.resolve({ ...message.rendered, bytes: new Uint8Array(message.rendered.bytes) })
-		else job.reject(new Error(message.message))
-	})
+	started.on(
+		'message',
+		(message: { id: number; ok: true; rendered: RenderedDossier } | { id: number; ok: false; message: string }) => {
+			const job = pending.get(message.id)
+			if (!job) return
+			pending.delete(message.id)
+			if (message.ok) job.resolve({ ...message.rendered, bytes: new Uint8Array(message.rendered.bytes) })
+			else job.reject(new Error(message.message))
+		},
+	)
 	const failAll = (error: Error) => {
 		worker = null
 		for (const job of pending.values()) job.reject(error)
@@ -37,7 +40,10 @@ function renderer(): Worker {
 }
 
 /** Renders a dossier off the main thread; other requests are served meanwhile. */
-export function renderDossierOffThread(data: DossierDataInput, options: { format: DossierFormat; templateId: string }): Promise<RenderedDossier> {
+export function renderDossierOffThread(
+	data: DossierDataInput,
+	options: { format: DossierFormat; templateId: string },
+): Promise<RenderedDossier> {
 	return new Promise((resolve, reject) => {
 		const id = nextId++
 		pending.set(id, { resolve, reject })

@@ -19,7 +19,11 @@ parentPort?.on('message', (job: Job) => {
 			const rendered = await renderDossier(job.data, { format: job.format, template })
 			parentPort?.postMessage({ id: job.id, ok: true, rendered }, [rendered.bytes.buffer as ArrayBuffer])
 		} catch (error) {
-			parentPort?.postMessage({ id: job.id, ok: false, message: error instanceof Error ? error.message : String(error) })
+			parentPort?.postMessage({
+				id: job.id,
+				ok: false,
+				message: error instanceof Error ? error.message : String(error),
+			})
 		}
 	})()
 })

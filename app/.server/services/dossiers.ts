@@ -30,7 +30,8 @@ function points(spectrum: Spectrum, from: number, to: number): Array<FigurePoint
 	return thinForFigure(out, 1500)
 }
 
-const fixed = (value: unknown, digits = 4) => (typeof value === 'number' && Number.isFinite(value) ? value.toFixed(digits) : '—')
+const fixed = (value: unknown, digits = 4) =>
+	typeof value === 'number' && Number.isFinite(value) ? value.toFixed(digits) : '—'
 
 type ComparisonJson = {
 	verdict: 'conforms' | 'does-not-conform' | 'inconclusive'
@@ -67,17 +68,28 @@ export async function buildDossierData(
 	const reference = content.referenceSpectrumId ? await loadSpectrum(db, content.referenceSpectrumId) : null
 	const range = { from: content.method.rangeFrom, to: content.method.rangeTo }
 	const [signed, evidenceRows, history, audit] = await Promise.all([
-		db.select().from(signatures).where(and(eq(signatures.versionId, version.id), isNull(signatures.voidedAt))).orderBy(asc(signatures.signedAt)),
+		db
+			.select()
+			.from(signatures)
+			.where(and(eq(signatures.versionId, version.id), isNull(signatures.voidedAt)))
+			.orderBy(asc(signatures.signedAt)),
 		db.select().from(evidence).where(eq(evidence.versionId, version.id)).orderBy(asc(evidence.createdAt)),
 		db
 			.select()
 			.from(specVersions)
-			.where(and(eq(specVersions.specificationId, specification.id), lte(specVersions.versionNumber, version.versionNumber)))
+			.where(
+				and(eq(specVersions.specificationId, specification.id), lte(specVersions.versionNumber, version.versionNumber)),
+			)
 			.orderBy(asc(specVersions.versionNumber)),
 		db
 			.select()
 			.from(auditEvents)
-			.where(or(eq(auditEvents.entityId, version.id), and(eq(auditEvents.entityType, 'specification'), eq(auditEvents.entityId, specification.id))))
+			.where(
+				or(
+					eq(auditEvents.entityId, version.id),
+					and(eq(auditEvents.entityType, 'specification'), eq(auditEvents.entityId, specification.id)),
+				),
+			)
 			.orderBy(desc(auditEvents.id))
 			.limit(60),
 	])
@@ -105,7 +117,13 @@ export async function buildDossierData(
 					{ label: 'Bands within tolerance', value: `${bandsWithin} of ${result.bands.length}` },
 				],
 				reasons: result.reasons,
-				overlay: reference && sample ? { reference: points(reference.spectrum, range.from, range.to), sample: points(sample, range.from, range.to) } : null,
+				overlay:
+					reference && sample
+						? {
+								reference: points(reference.spectrum, range.from, range.to),
+								sample: points(sample, range.from, range.to),
+							}
+						: null,
 			}
 		}
 		const result = item.result as SpecificityJson
@@ -114,7 +132,10 @@ export async function buildDossierData(
 			title: item.title,
 			verdict: result.specific ? 'passed' : 'failed',
 			numbers: [
-				{ label: 'Nearest other material', value: result.nearest ? `${result.nearest.materialName} (${result.nearest.fileName})` : 'none in the library' },
+				{
+					label: 'Nearest other material',
+					value: result.nearest ? `${result.nearest.materialName} (${result.nearest.fileName})` : 'none in the library',
+				},
 				{ label: 'Its correlation', value: fixed(result.nearest?.correlation) },
 				{ label: 'Minimum correlation', value: String(result.threshold) },
 				{ label: 'Margin', value: fixed(result.margin) },
@@ -146,8 +167,15 @@ export async function buildDossierData(
 	const subject = { documentNumber: specification.documentNumber, versionNumber: version.versionNumber }
 	const controlled = version.state === 'effective'
 	return {
-		organisation: { name: process.env.BANDPROOF_ORGANISATION ?? 'Calder Vale Pharmaceuticals', site: process.env.BANDPROOF_SITE ?? 'Incoming-materials QC laboratory' },
-		document: { number: specification.documentNumber, title: specification.title, material: { code: material.code, name: material.name, casNumber: material.casNumber } },
+		organisation: {
+			name: process.env.BANDPROOF_ORGANISATION ?? 'Calder Vale Pharmaceuticals',
+			site: process.env.BANDPROOF_SITE ?? 'Incoming-materials QC laboratory',
+		},
+		document: {
+			number: specification.documentNumber,
+			title: specification.title,
+			material: { code: material.code, name: material.name, casNumber: material.casNumber },
+		},
 		version: {
 			number: version.versionNumber,
 			state: version.state,
@@ -165,7 +193,10 @@ export async function buildDossierData(
 			meaning: signature.meaning,
 			signedAtUtc: signature.signedAt.toISOString(),
 			signerTimeZone: signature.signerTimeZone,
-			localTime: signatureManifestation({ meaning: signature.meaning, signedAt: signature.signedAt, timeZone: signature.signerTimeZone }, { ...subject, printedName: signature.printedName }).signedAtLocal,
+			localTime: signatureManifestation(
+				{ meaning: signature.meaning, signedAt: signature.signedAt, timeZone: signature.signerTimeZone },
+				{ ...subject, printedName: signature.printedName },
+			).signedAtLocal,
 			contentSha256: signature.contentSha256,
 		})),
 		body: {
@@ -175,7 +206,11 @@ export async function buildDossierData(
 				minCorrelation: content.criteria.minCorrelation,
 				minDerivativeCorrelation: content.criteria.minDerivativeCorrelation,
 				defaultBandTolerance: content.criteria.defaultBandTolerance,
-				exclusionRegions: content.criteria.exclusionRegions.map((region) => ({ from: region.from, to: region.to, label: region.label ?? null })),
+				exclusionRegions: content.criteria.exclusionRegions.map((region) => ({
+					from: region.from,
+					to: region.to,
+					label: region.label ?? null,
+				})),
 				thresholdJustification: content.criteria.thresholdJustification,
 			},
 			notes: content.notes,
@@ -191,7 +226,13 @@ export async function buildDossierData(
 			: null,
 		bands: content.bands.map((band) => ({
 			position: band.position,
-			tolerance: Math.round(bandTolerance({ position: band.position, tolerance: band.tolerance ?? undefined }, content.criteria.defaultBandTolerance) * 10) / 10,
+			tolerance:
+				Math.round(
+					bandTolerance(
+						{ position: band.position, tolerance: band.tolerance ?? undefined },
+						content.criteria.defaultBandTolerance,
+					) * 10,
+				) / 10,
 			assignment: band.assignment,
 			intensityClass: band.intensityClass,
 			shape: band.shape,
@@ -208,7 +249,8 @@ export async function buildDossierData(
 		contentSha256: hashed!.hash,
 		verification: {
 			url: `${publicBaseUrl()}/verify`,
-			instructions: 'Upload this file, or type its SHA-256, on the verification page: Bandproof says whether it matches a stored dossier, and which document, version and template made it.',
+			instructions:
+				'Upload this file, or type its SHA-256, on the verification page: Bandproof says whether it matches a stored dossier, and which document, version and template made it.',
 		},
 		renderedAt: input.renderedAt.toISOString(),
 	}
@@ -223,10 +265,21 @@ export type DossierFile = { bytes: Uint8Array; sha256: string; fileName: string;
  */
 export async function getDossier(
 	db: Db,
-	input: { actor: Actor | null; versionId: string; format: DossierFormat; now: Date; ipAddress?: string | null; purpose: 'download' | 'preview' | 'seed' },
+	input: {
+		actor: Actor | null
+		versionId: string
+		format: DossierFormat
+		now: Date
+		ipAddress?: string | null
+		purpose: 'download' | 'preview' | 'seed'
+	},
 ): Promise<DossierFile | null> {
 	const [version] = await db
-		.select({ state: specVersions.state, versionNumber: specVersions.versionNumber, documentNumber: specifications.documentNumber })
+		.select({
+			state: specVersions.state,
+			versionNumber: specVersions.versionNumber,
+			documentNumber: specifications.documentNumber,
+		})
 		.from(specVersions)
 		.innerJoin(specifications, eq(specifications.id, specVersions.specificationId))
 		.where(eq(specVersions.id, input.versionId))
@@ -237,7 +290,13 @@ export async function getDossier(
 		const [stored] = await db
 			.select()
 			.from(dossiers)
-			.where(and(eq(dossiers.versionId, input.versionId), eq(dossiers.format, input.format), eq(dossiers.versionState, version.state)))
+			.where(
+				and(
+					eq(dossiers.versionId, input.versionId),
+					eq(dossiers.format, input.format),
+					eq(dossiers.versionState, version.state),
+				),
+			)
 		if (stored) file = { bytes: stored.bytes, sha256: stored.sha256, fileName, stored: true }
 	}
 	if (!file) {
@@ -270,7 +329,13 @@ export async function getDossier(
 					action: 'dossier.stored',
 					entityType: 'spec-version',
 					entityId: input.versionId,
-					after: { format: input.format, state: version.state, sha256: rendered.sha256, template: `${template.id} ${template.version}`, templateSha256: template.sha256 },
+					after: {
+						format: input.format,
+						state: version.state,
+						sha256: rendered.sha256,
+						template: `${template.id} ${template.version}`,
+						templateSha256: template.sha256,
+					},
 					occurredAt: input.now,
 				})
 				file = { bytes: rendered.bytes, sha256: rendered.sha256, fileName, stored: true }
@@ -279,7 +344,13 @@ export async function getDossier(
 				const [winner] = await db
 					.select()
 					.from(dossiers)
-					.where(and(eq(dossiers.versionId, input.versionId), eq(dossiers.format, input.format), eq(dossiers.versionState, version.state)))
+					.where(
+						and(
+							eq(dossiers.versionId, input.versionId),
+							eq(dossiers.format, input.format),
+							eq(dossiers.versionState, version.state),
+						),
+					)
 				file = { bytes: winner!.bytes, sha256: winner!.sha256, fileName, stored: true }
 			}
 		} else {

@@ -48,7 +48,13 @@ export async function createMaterial(
 		}
 		const [row] = await tx
 			.insert(materials)
-			.values({ ...columns, createdBy: input.actor.id, updatedBy: input.actor.id, createdAt: input.now, updatedAt: input.now })
+			.values({
+				...columns,
+				createdBy: input.actor.id,
+				updatedBy: input.actor.id,
+				createdAt: input.now,
+				updatedAt: input.now,
+			})
 			.returning({ id: materials.id })
 		if (!row) throw new Error('material insert returned no row')
 		await recordAudit(tx, {

@@ -32,7 +32,12 @@ export async function recipientAddresses(db: Db, to: ReadonlyArray<Recipient>): 
 				.innerJoin(userRoles, eq(userRoles.userId, users.id))
 				.where(and(inArray(userRoles.role, roles), isNull(users.deactivatedAt)))
 		: []
-	const byId = ids.length ? await db.select({ email: users.email }).from(users).where(and(inArray(users.id, ids), isNull(users.deactivatedAt))) : []
+	const byId = ids.length
+		? await db
+				.select({ email: users.email })
+				.from(users)
+				.where(and(inArray(users.id, ids), isNull(users.deactivatedAt)))
+		: []
 	return [...new Set([...byRole, ...byId].map((row) => row.email))]
 }
 
@@ -81,5 +86,12 @@ export async function queueMail(
 		effectiveFrom: input.effectiveFrom ?? undefined,
 		link: `${publicBaseUrl()}/specifications/${input.specification.id}/versions/${input.version.id}`,
 	})
-	await enqueueMail(db, { to: addresses, ...mail, kind, entityType: 'spec-version', entityId: input.version.id, now: input.now })
+	await enqueueMail(db, {
+		to: addresses,
+		...mail,
+		kind,
+		entityType: 'spec-version',
+		entityId: input.version.id,
+		now: input.now,
+	})
 }

@@ -15,16 +15,26 @@ export async function addRedline(
 	db: Db,
 	input: { actor: Actor; versionId: string; anchor: string; body: string; suggestedText: string | null; now: Date },
 ): Promise<Result<{ redlineId: string }, DomainError>> {
-	if (!can(input.actor, 'spec-version:sign')) return err(new Forbidden('Only reviewers and approvers redline a version.'))
+	if (!can(input.actor, 'spec-version:sign'))
+		return err(new Forbidden('Only reviewers and approvers redline a version.'))
 	return db.transaction(async (tx) => {
 		const [version] = await tx.select().from(specVersions).where(eq(specVersions.id, input.versionId))
 		if (!version) return err(new NotFound('The specification version'))
 		if (version.state !== 'in_review') return err(new Conflict('Redlines are added while the version is in review.'))
-		if (version.editorIds.includes(input.actor.id)) return err(new Forbidden('You edited this version, so you cannot redline it.'))
-		if (!validAnchor(input.anchor, parseContent(version.content))) return err(new DomainError('Point the redline at a field or band of this version.', 422))
+		if (version.editorIds.includes(input.actor.id))
+			return err(new Forbidden('You edited this version, so you cannot redline it.'))
+		if (!validAnchor(input.anchor, parseContent(version.content)))
+			return err(new DomainError('Point the redline at a field or band of this version.', 422))
 		const [row] = await tx
 			.insert(redlines)
-			.values({ versionId: input.versionId, anchor: input.anchor, body: input.body, suggestedText: input.suggestedText, authorId: input.actor.id, createdAt: input.now })
+			.values({
+				versionId: input.versionId,
+				anchor: input.anchor,
+				body: input.body,
+				suggestedText: input.suggestedText,
+				authorId: input.actor.id,
+				createdAt: input.now,
+			})
 			.returning({ id: redlines.id })
 		const [specification] = await tx.select().from(specifications).where(eq(specifications.id, version.specificationId))
 		await queueMail(tx, {
@@ -59,7 +69,15 @@ export async function replyToRedline(
 		if (!parent || parent.parentId) return err(new NotFound('The redline'))
 		const [row] = await tx
 			.insert(redlines)
-			.values({ versionId: parent.versionId, parentId: parent.id, anchor: parent.anchor, body: input.body, authorId: input.actor.id, status: 'resolved', createdAt: input.now })
+			.values({
+				versionId: parent.versionId,
+				parentId: parent.id,
+				anchor: parent.anchor,
+				body: input.body,
+				authorId: input.actor.id,
+				status: 'resolved',
+				createdAt: input.now,
+			})
 			.returning({ id: redlines.id })
 		await recordAudit(tx, {
 			actor: auditActor(input.actor),
@@ -79,13 +97,24 @@ export async function setRedlineStatus(
 	input: { actor: Actor; redlineId: string; status: 'open' | 'resolved'; resolution: string | null; now: Date },
 ): Promise<Result<true, DomainError>> {
 	return db.transaction(async (tx) => {
-		const [redline] = await tx.select().from(redlines).where(and(eq(redlines.id, input.redlineId)))
+		const [redline] = await tx
+			.select()
+			.from(redlines)
+			.where(and(eq(redlines.id, input.redlineId)))
 		if (!redline || redline.parentId) return err(new NotFound('The redline'))
-		const [version] = await tx.select({ state: specVersions.state }).from(specVersions).where(eq(specVersions.id, redline.versionId))
-		if (version?.state !== 'draft' && version?.state !== 'in_review') return err(new Conflict('Redlines of a signed version are closed.'))
+		const [version] = await tx
+			.select({ state: specVersions.state })
+			.from(specVersions)
+			.where(eq(specVersions.id, redline.versionId))
+		if (version?.state !== 'draft' && version?.state !== 'in_review')
+			return err(new Conflict('Redlines of a signed version are closed.'))
 		await tx
 			.update(redlines)
-			.set(input.status === 'resolved' ? { status: 'resolved', resolvedBy: input.actor.id, resolvedAt: input.now, resolution: input.resolution } : { status: 'open', resolvedBy: null, resolvedAt: null, resolution: null })
+			.set(
+				input.status === 'resolved'
+					? { status: 'resolved', resolvedBy: input.actor.id, resolvedAt: input.now, resolution: input.resolution }
+					: { status: 'open', resolvedBy: null, resolvedAt: null, resolution: null },
+			)
 			.where(eq(redlines.id, redline.id))
 		await recordAudit(tx, {
 			actor: auditActor(input.actor),
@@ -114,12 +143,26 @@ export async function acceptRedlineSuggestion(
 	if (redline.status !== 'open') return err(new Conflict('This redline is already resolved.'))
 	const [version] = await db.select().from(specVersions).where(eq(specVersions.id, redline.versionId))
 	if (!version) return err(new NotFound('The specification version'))
-	if (version.state !== 'draft') return err(new Conflict('Suggestions are accepted into a draft: the version must be returned to draft first.'))
+	if (version.state !== 'draft')
+		return err(new Conflict('Suggestions are accepted into a draft: the version must be returned to draft first.'))
 	const next = applySuggestion(parseContent(version.content), redline.anchor, redline.suggestedText)
 	if (!next) return err(new DomainError('The field this redline points at no longer exists.', 422))
-	const saved = await saveDraft(db, { actor: input.actor, versionId: version.id, revision: version.revision, content: next, changeReason: version.changeReason, now: input.now })
+	const saved = await saveDraft(db, {
+		actor: input.actor,
+		versionId: version.id,
+		revision: version.revision,
+		content: next,
+		changeReason: version.changeReason,
+		now: input.now,
+	})
 	if (!saved.ok) return saved
-	const resolved = await setRedlineStatus(db, { actor: input.actor, redlineId: redline.id, status: 'resolved', resolution: 'Suggested text accepted', now: input.now })
+	const resolved = await setRedlineStatus(db, {
+		actor: input.actor,
+		redlineId: redline.id,
+		status: 'resolved',
+		resolution: 'Suggested text accepted',
+		now: input.now,
+	})
 	if (!resolved.ok) return resolved
 	return ok(saved.value)
 }

@@ -24,7 +24,10 @@ import {
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
 
 /** The canonical document of a version and its SHA-256: what a signature covers (content + referenced spectrum hash). */
-export async function versionContentHash(db: Db, versionId: string): Promise<{ hash: string; document: ReturnType<typeof canonicalVersionDocument> } | null> {
+export async function versionContentHash(
+	db: Db,
+	versionId: string,
+): Promise<{ hash: string; document: ReturnType<typeof canonicalVersionDocument> } | null> {
 	const [row] = await db
 		.select({ version: specVersions, specification: specifications, materialCode: materials.code })
 		.from(specVersions)
@@ -34,7 +37,10 @@ export async function versionContentHash(db: Db, versionId: string): Promise<{ h
 	if (!row) return null
 	const content = parseContent(row.version.content)
 	const [reference] = content.referenceSpectrumId
-		? await db.select({ sha256: spectra.sha256, fileName: spectra.fileName }).from(spectra).where(eq(spectra.id, content.referenceSpectrumId))
+		? await db
+				.select({ sha256: spectra.sha256, fileName: spectra.fileName })
+				.from(spectra)
+				.where(eq(spectra.id, content.referenceSpectrumId))
 		: []
 	const document = canonicalVersionDocument({
 		documentNumber: row.specification.documentNumber,
@@ -93,13 +99,21 @@ export type StepInput = {
  * signatures, effective date and lock, superseding the predecessor, mail) and the audit event are written in
  * one transaction. An approval whose effective date has come makes the version effective at once.
  */
-export async function takeWorkflowStep(db: Db, input: StepInput): Promise<Result<{ state: VersionState }, DomainError>> {
+export async function takeWorkflowStep(
+	db: Db,
+	input: StepInput,
+): Promise<Result<{ state: VersionState }, DomainError>> {
 	return db.transaction(async (tx) => {
 		const outcome = await stepInTransaction(tx, input)
 		if (!outcome.ok) return outcome
 		let state = outcome.value.state
 		if (state === 'approved' && outcome.value.effectiveFrom && outcome.value.effectiveFrom <= input.now) {
-			const effective = await stepInTransaction(tx, { actor: SYSTEM, versionId: input.versionId, event: { type: 'make-effective' }, now: input.now })
+			const effective = await stepInTransaction(tx, {
+				actor: SYSTEM,
+				versionId: input.versionId,
+				event: { type: 'make-effective' },
+				now: input.now,
+			})
 			if (!effective.ok) return effective
 			state = effective.value.state
 		}
@@ -107,15 +121,20 @@ export async function takeWorkflowStep(db: Db, input: StepInput): Promise<Result
 	})
 }
 
-async function stepInTransaction(tx: Tx, input: StepInput): Promise<Result<{ state: VersionState; effectiveFrom: Date | null }, DomainError>> {
+async function stepInTransaction(
+	tx: Tx,
+	input: StepInput,
+): Promise<Result<{ state: VersionState; effectiveFrom: Date | null }, DomainError>> {
 	const loaded = await loadSnapshot(tx, input.versionId)
 	if (!loaded) return err(new NotFound('The specification version'))
 	const { snapshot, version, specification } = loaded
 	const decision = decideTransition(snapshot, input.event, input.actor, input.now)
 	if (!decision.ok) return decision
 	const { next, effects } = decision.value
-	const actorRow = input.actor === SYSTEM ? null : (await tx.select().from(users).where(eq(users.id, input.actor.id)))[0]
-	const auditActor: AuditActor = input.actor === SYSTEM ? SYSTEM_ACTOR : { id: input.actor.id, label: input.actor.email }
+	const actorRow =
+		input.actor === SYSTEM ? null : (await tx.select().from(users).where(eq(users.id, input.actor.id)))[0]
+	const auditActor: AuditActor =
+		input.actor === SYSTEM ? SYSTEM_ACTOR : { id: input.actor.id, label: input.actor.email }
 	const patch: Partial<typeof specVersions.$inferInsert> = { state: next }
 	let signed: { meaning: string; hash: string } | null = null
 	let effectiveFrom: Date | null = version.effectiveFrom
@@ -147,7 +166,10 @@ async function stepInTransaction(tx: Tx, input: StepInput): Promise<Result<{ sta
 				break
 			}
 			case 'void-signatures':
-				await tx.update(signatures).set({ voidedAt: input.now }).where(and(eq(signatures.versionId, version.id), isNull(signatures.voidedAt)))
+				await tx
+					.update(signatures)
+					.set({ voidedAt: input.now })
+					.where(and(eq(signatures.versionId, version.id), isNull(signatures.voidedAt)))
 				break
 			case 'schedule-effective': {
 				// Approval locks the version: content, band table and the referenced spectrum are frozen from here on.
@@ -166,9 +188,20 @@ async function stepInTransaction(tx: Tx, input: StepInput): Promise<Result<{ sta
 				const previous = await tx
 					.select({ id: specVersions.id })
 					.from(specVersions)
-					.where(and(eq(specVersions.specificationId, version.specificationId), eq(specVersions.state, 'effective'), ne(specVersions.id, version.id)))
+					.where(
+						and(
+							eq(specVersions.specificationId, version.specificationId),
+							eq(specVersions.state, 'effective'),
+							ne(specVersions.id, version.id),
+						),
+					)
 				for (const other of previous) {
-					const superseded = await stepInTransaction(tx, { actor: SYSTEM, versionId: other.id, event: { type: 'supersede' }, now: input.now })
+					const superseded = await stepInTransaction(tx, {
+						actor: SYSTEM,
+						versionId: other.id,
+						event: { type: 'supersede' },
+						now: input.now,
+					})
 					if (!superseded.ok) return superseded
 				}
 				break
@@ -225,7 +258,12 @@ export async function applyDueEffectiveDates(db: Db, now: Date): Promise<number>
 	let applied = 0
 	for (const version of due) {
 		try {
-			const outcome = await takeWorkflowStep(db, { actor: SYSTEM, versionId: version.id, event: { type: 'make-effective' }, now })
+			const outcome = await takeWorkflowStep(db, {
+				actor: SYSTEM,
+				versionId: version.id,
+				event: { type: 'make-effective' },
+				now,
+			})
 			if (outcome.ok) applied += 1
 			else console.error(`effective date of version ${version.id} not applied: ${outcome.error.message}`)
 		} catch (error) {

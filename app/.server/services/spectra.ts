@@ -42,7 +42,10 @@ export async function storeSpectrumFile(
 ): Promise<UploadOutcome> {
 	const { fileName, bytes } = input
 	const sha256 = sha256Hex(bytes)
-	const [existing] = await db.select({ id: spectra.id, fileName: spectra.fileName }).from(spectra).where(eq(spectra.sha256, sha256))
+	const [existing] = await db
+		.select({ id: spectra.id, fileName: spectra.fileName })
+		.from(spectra)
+		.where(eq(spectra.sha256, sha256))
 	if (existing) {
 		return {
 			fileName,
@@ -88,7 +91,14 @@ export async function storeSpectrumFile(
 			action: 'spectrum.uploaded',
 			entityType: 'spectrum',
 			entityId: row.id,
-			after: { fileName, sha256, points, format: metadata.format, ordinate: metadata.ordinate, purpose: input.metadata.purpose },
+			after: {
+				fileName,
+				sha256,
+				points,
+				format: metadata.format,
+				ordinate: metadata.ordinate,
+				purpose: input.metadata.purpose,
+			},
 			occurredAt: input.now,
 		})
 		return row.id
@@ -96,14 +106,25 @@ export async function storeSpectrumFile(
 	if (!id) {
 		// Someone stored the same bytes between our check and our insert.
 		const [winner] = await db.select({ id: spectra.id }).from(spectra).where(eq(spectra.sha256, sha256))
-		return { fileName, status: 'duplicate', spectrumId: winner!.id, message: 'This file is already in the library; it was not stored twice.' }
+		return {
+			fileName,
+			status: 'duplicate',
+			spectrumId: winner!.id,
+			message: 'This file is already in the library; it was not stored twice.',
+		}
 	}
 	return { fileName, status: 'stored', spectrumId: id, points, warnings: warnings.map((warning) => warning.message) }
 }
 
 /** The parsed data of a stored spectrum, or null. */
-export async function loadSpectrum(db: Db, id: string): Promise<{ spectrum: Spectrum; sha256: string; fileName: string } | null> {
-	const [row] = await db.select({ x: spectra.x, y: spectra.y, sha256: spectra.sha256, fileName: spectra.fileName }).from(spectra).where(eq(spectra.id, id))
+export async function loadSpectrum(
+	db: Db,
+	id: string,
+): Promise<{ spectrum: Spectrum; sha256: string; fileName: string } | null> {
+	const [row] = await db
+		.select({ x: spectra.x, y: spectra.y, sha256: spectra.sha256, fileName: spectra.fileName })
+		.from(spectra)
+		.where(eq(spectra.id, id))
 	if (!row) return null
 	return { spectrum: { x: bytesToFloats(row.x), y: bytesToFloats(row.y) }, sha256: row.sha256, fileName: row.fileName }
 }

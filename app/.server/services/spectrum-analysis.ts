@@ -49,14 +49,19 @@ export function suggestBandRows(spectrum: Spectrum, content: SpecVersionContent)
 			if (!roles.has(item.position)) roles.set(item.position, `${item.role} (${group.name.toLowerCase()})`)
 		}
 	}
-	const excluded = (position: number) => content.criteria.exclusionRegions.some((region) => position >= region.from && position <= region.to)
+	const excluded = (position: number) =>
+		content.criteria.exclusionRegions.some((region) => position >= region.from && position <= region.to)
 	const tolerance = (position: number) => bandTolerance({ position }, content.criteria.defaultBandTolerance)
 	// Strongest first; a weaker peak within reach of a row already taken would make the table ambiguous.
 	const taken: Array<{ position: number; relative: number; shape: 'broad' | 'sharp' }> = []
 	for (const peak of [...analysis.peaks].sort((a, b) => b.relative - a.relative)) {
 		if (peak.relative < SUGGESTED_BAND_MIN_RELATIVE) break
-		if (peak.position < content.method.rangeFrom || peak.position > content.method.rangeTo || excluded(peak.position)) continue
-		if (taken.some((row) => Math.abs(row.position - peak.position) <= tolerance(row.position) + tolerance(peak.position))) continue
+		if (peak.position < content.method.rangeFrom || peak.position > content.method.rangeTo || excluded(peak.position))
+			continue
+		if (
+			taken.some((row) => Math.abs(row.position - peak.position) <= tolerance(row.position) + tolerance(peak.position))
+		)
+			continue
 		taken.push(peak)
 	}
 	const rows = taken

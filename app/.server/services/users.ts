@@ -44,13 +44,20 @@ export async function createUser(
 			updatedAt: input.now,
 		})
 		const grantedBy = auditActor(input.actor).id
-		await tx.insert(userRoles).values(input.values.roles.map((role) => ({ userId: id, role, grantedBy, grantedAt: input.now })))
+		await tx
+			.insert(userRoles)
+			.values(input.values.roles.map((role) => ({ userId: id, role, grantedBy, grantedAt: input.now })))
 		await recordAudit(tx, {
 			actor: auditActor(input.actor),
 			action: 'user.created',
 			entityType: 'user',
 			entityId: id,
-			after: { name: input.values.name, email: input.values.email, roles: [...input.values.roles].sort(), timeZone: input.values.timeZone },
+			after: {
+				name: input.values.name,
+				email: input.values.email,
+				roles: [...input.values.roles].sort(),
+				timeZone: input.values.timeZone,
+			},
 			occurredAt: input.now,
 		})
 		return ok({ id })
@@ -74,7 +81,9 @@ export async function setUserRoles(
 		const after = [...new Set(input.roles)].sort()
 		if (before.join(',') === after.join(',')) return ok({ changed: false })
 		await tx.delete(userRoles).where(eq(userRoles.userId, input.userId))
-		await tx.insert(userRoles).values(after.map((role) => ({ userId: input.userId, role, grantedBy: input.actor.id, grantedAt: input.now })))
+		await tx
+			.insert(userRoles)
+			.values(after.map((role) => ({ userId: input.userId, role, grantedBy: input.actor.id, grantedAt: input.now })))
 		await recordAudit(tx, {
 			actor: auditActor(input.actor),
 			action: 'user.roles-changed',
@@ -95,7 +104,11 @@ export async function deactivateUser(
 ): Promise<Result<true, DomainError>> {
 	if (input.userId === input.actor.id) return err(new Conflict('You cannot deactivate your own account.'))
 	return db.transaction(async (tx) => {
-		const [user] = await tx.update(users).set({ deactivatedAt: input.now, updatedAt: input.now }).where(eq(users.id, input.userId)).returning()
+		const [user] = await tx
+			.update(users)
+			.set({ deactivatedAt: input.now, updatedAt: input.now })
+			.where(eq(users.id, input.userId))
+			.returning()
 		if (!user) return err(new NotFound('The account'))
 		await tx.delete(sessions).where(eq(sessions.userId, input.userId))
 		await recordAudit(tx, {
@@ -112,7 +125,10 @@ export async function deactivateUser(
 }
 
 /** Gives a deactivated account access again. */
-export async function reactivateUser(db: Db, input: { actor: Actor; userId: string; now: Date }): Promise<Result<true, DomainError>> {
+export async function reactivateUser(
+	db: Db,
+	input: { actor: Actor; userId: string; now: Date },
+): Promise<Result<true, DomainError>> {
 	return db.transaction(async (tx) => {
 		const [user] = await tx
 			.update(users)
@@ -132,7 +148,10 @@ export async function reactivateUser(db: Db, input: { actor: Actor; userId: stri
 }
 
 /** Lifts a lock-out before it runs out. */
-export async function unlockUser(db: Db, input: { actor: Actor; userId: string; now: Date }): Promise<Result<true, DomainError>> {
+export async function unlockUser(
+	db: Db,
+	input: { actor: Actor; userId: string; now: Date },
+): Promise<Result<true, DomainError>> {
 	return db.transaction(async (tx) => {
 		const [user] = await tx
 			.update(users)

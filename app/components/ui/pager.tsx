@@ -2,7 +2,19 @@ import { Link, useSearchParams } from 'react-router'
 import { cn } from '#app/utils/misc.ts'
 
 /** Previous/next links that keep the other query parameters. */
-export function Pager({ page, pageCount, total, noun, plural }: { page: number; pageCount: number; total: number; noun: string; plural?: string }) {
+export function Pager({
+	page,
+	pageCount,
+	total,
+	noun,
+	plural,
+}: {
+	page: number
+	pageCount: number
+	total: number
+	noun: string
+	plural?: string
+}) {
 	const [searchParams] = useSearchParams()
 	const linkTo = (target: number) => {
 		const next = new URLSearchParams(searchParams)
@@ -40,7 +52,17 @@ export function Pager({ page, pageCount, total, noun, plural }: { page: number; 
 }
 
 /** A column heading that sorts the table by its key; a second click reverses the order. */
-export function SortHeader({ label, sortKey, current, dir }: { label: string; sortKey: string; current: string; dir: 'asc' | 'desc' }) {
+export function SortHeader({
+	label,
+	sortKey,
+	current,
+	dir,
+}: {
+	label: string
+	sortKey: string
+	current: string
+	dir: 'asc' | 'desc'
+}) {
 	const [searchParams] = useSearchParams()
 	const next = new URLSearchParams(searchParams)
 	const active = current === sortKey
@@ -48,7 +70,11 @@ export function SortHeader({ label, sortKey, current, dir }: { label: string; so
 	next.set('dir', active && dir === 'asc' ? 'desc' : 'asc')
 	next.delete('page')
 	return (
-		<th scope="col" aria-sort={active ? (dir === 'asc' ? 'ascending' : 'descending') : 'none'} className="px-3 py-2 text-left font-semibold">
+		<th
+			scope="col"
+			aria-sort={active ? (dir === 'asc' ? 'ascending' : 'descending') : 'none'}
+			className="px-3 py-2 text-left font-semibold"
+		>
 			<Link to={`?${next.toString()}`} className="hover:text-accent inline-flex items-center gap-1">
 				{label}
 				<span aria-hidden="true" className="text-ink-faint text-xs">

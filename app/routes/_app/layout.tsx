@@ -52,16 +52,20 @@ const NAVIGATION: Array<NavGroup> = [
 ]
 
 function visibleNavigation(actor: Actor): Array<NavGroup> {
-	return NAVIGATION.map((group) => ({ ...group, items: group.items.filter((item) => can(actor, item.permission)) })).filter(
-		(group) => group.items.length > 0,
-	)
+	return NAVIGATION.map((group) => ({
+		...group,
+		items: group.items.filter((item) => can(actor, item.permission)),
+	})).filter((group) => group.items.length > 0)
 }
 
 export default function SignedInLayout({ loaderData }: Route.ComponentProps) {
 	const { actor, queueCount } = loaderData
 	return (
 		<div className="flex min-h-screen">
-			<a href="#main" className="bg-accent text-paper sr-only z-50 rounded px-3 py-2 focus:not-sr-only focus:fixed focus:top-2 focus:left-2">
+			<a
+				href="#main"
+				className="bg-accent text-paper sr-only z-50 rounded px-3 py-2 focus:not-sr-only focus:fixed focus:top-2 focus:left-2"
+			>
 				Skip to content
 			</a>
 			<aside className="border-rule bg-sheet flex w-60 shrink-0 flex-col border-r">
@@ -73,7 +77,9 @@ export default function SignedInLayout({ loaderData }: Route.ComponentProps) {
 					{visibleNavigation(actor).map((group) => (
 						<div key={group.heading ?? 'top'}>
 							{group.heading ? (
-								<p className="text-ink-faint mb-1 px-2 text-xs font-semibold tracking-wider uppercase">{group.heading}</p>
+								<p className="text-ink-faint mb-1 px-2 text-xs font-semibold tracking-wider uppercase">
+									{group.heading}
+								</p>
 							) : null}
 							<ul className="space-y-0.5">
 								{group.items.map((item) => (
@@ -84,13 +90,19 @@ export default function SignedInLayout({ loaderData }: Route.ComponentProps) {
 											className={({ isActive }) =>
 												cn(
 													'block rounded-md px-2 py-1.5 text-sm',
-													isActive ? 'bg-accent-soft text-accent-strong font-semibold' : 'text-ink-soft hover:bg-paper hover:text-ink',
+													isActive
+														? 'bg-accent-soft text-accent-strong font-semibold'
+														: 'text-ink-soft hover:bg-paper hover:text-ink',
 												)
 											}
 										>
 											{item.label}
 											{item.to === '/queue' && queueCount > 0 ? (
-												<span className="bg-accent text-paper ml-2 rounded-full px-1.5 py-0.5 text-xs font-semibold" aria-label={`${queueCount} waiting`} data-testid="queue-count">
+												<span
+													className="bg-accent text-paper ml-2 rounded-full px-1.5 py-0.5 text-xs font-semibold"
+													aria-label={`${queueCount} waiting`}
+													data-testid="queue-count"
+												>
 													{queueCount}
 												</span>
 											) : null}

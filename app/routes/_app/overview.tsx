@@ -11,7 +11,9 @@ import { can, ROLE_DUTIES } from '#shared/authz/permissions.ts'
 
 export async function loader({ context }: Route.LoaderArgs) {
 	const actor = authorize(context, 'workspace:enter')
-	const materialCount = can(actor, 'material:read') ? ((await db.select({ n: count() }).from(materials))[0]?.n ?? 0) : null
+	const materialCount = can(actor, 'material:read')
+		? ((await db.select({ n: count() }).from(materials))[0]?.n ?? 0)
+		: null
 	return { actor, materialCount }
 }
 

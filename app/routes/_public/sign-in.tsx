@@ -66,14 +66,22 @@ export default function SignIn({ actionData }: Route.ComponentProps) {
 					<h1 className="mt-3 text-2xl font-bold">Bandproof</h1>
 					<p className="text-ink-soft mt-1 text-sm">Identity-test dossiers with spectral evidence</p>
 				</div>
-				<Form method="post" {...getFormProps(form)} className="bg-sheet border-rule space-y-4 rounded-lg border p-6 shadow-sm">
+				<Form
+					method="post"
+					{...getFormProps(form)}
+					className="bg-sheet border-rule space-y-4 rounded-lg border p-6 shadow-sm"
+				>
 					<h2 className="text-lg font-bold">Sign in</h2>
 					<FormErrors id={form.errorId} errors={form.errors} />
 					<input type="hidden" name="redirectTo" value={searchParams.get('redirectTo') ?? ''} />
 					<Field
 						label="E-mail"
 						errors={fields.email.errors}
-						inputProps={{ ...getInputProps(fields.email, { type: 'email' }), autoComplete: 'username', autoFocus: true }}
+						inputProps={{
+							...getInputProps(fields.email, { type: 'email' }),
+							autoComplete: 'username',
+							autoFocus: true,
+						}}
 					/>
 					<Field
 						label="Password"
@@ -85,8 +93,8 @@ export default function SignIn({ actionData }: Route.ComponentProps) {
 					</Button>
 				</Form>
 				<p className="text-ink-faint mt-6 text-center text-xs">
-					Accounts are personal and are created by your administrator. Never share your password: your sign-in is
-					your electronic signature.
+					Accounts are personal and are created by your administrator. Never share your password: your sign-in is your
+					electronic signature.
 				</p>
 			</div>
 		</main>

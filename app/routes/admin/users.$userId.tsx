@@ -36,8 +36,14 @@ export async function action({ request, context, params }: Route.ActionArgs) {
 				: value.intent === 'reactivate'
 					? await reactivateUser(db, base)
 					: await unlockUser(db, base)
-	if (!outcome.ok) return data({ result: submission.reply({ formErrors: [outcome.error.message] }) }, { status: outcome.error.status })
-	const titles = { 'set-roles': 'Roles saved', deactivate: 'Account deactivated', reactivate: 'Account reactivated', unlock: 'Account unlocked' } as const
+	if (!outcome.ok)
+		return data({ result: submission.reply({ formErrors: [outcome.error.message] }) }, { status: outcome.error.status })
+	const titles = {
+		'set-roles': 'Roles saved',
+		deactivate: 'Account deactivated',
+		reactivate: 'Account reactivated',
+		unlock: 'Account unlocked',
+	} as const
 	return redirectWithToast(`/admin/users/${params.userId}`, { kind: 'success', title: titles[value.intent] })
 }
 
@@ -59,7 +65,11 @@ export default function UserPage({ loaderData, actionData }: Route.ComponentProp
 				}
 				actions={
 					<StatusBadge tone={user.status === 'active' ? 'good' : user.status === 'locked' ? 'caution' : 'neutral'}>
-						{user.status === 'active' ? 'Active' : user.status === 'locked' ? `Locked until ${formatUtc(user.lockedUntil)}` : 'Deactivated'}
+						{user.status === 'active'
+							? 'Active'
+							: user.status === 'locked'
+								? `Locked until ${formatUtc(user.lockedUntil)}`
+								: 'Deactivated'}
 					</StatusBadge>
 				}
 			/>
@@ -112,7 +122,9 @@ export default function UserPage({ loaderData, actionData }: Route.ComponentProp
 							<Button type="submit" name="intent" value="deactivate" variant="danger" disabled={busy}>
 								Deactivate account
 							</Button>
-							<p className="text-ink-faint text-xs">The person is signed out at once. Their name stays on every record.</p>
+							<p className="text-ink-faint text-xs">
+								The person is signed out at once. Their name stays on every record.
+							</p>
 						</Form>
 					)}
 				</section>

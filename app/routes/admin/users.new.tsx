@@ -22,7 +22,8 @@ export function loader({ context }: Route.LoaderArgs) {
 export async function action({ request, context }: Route.ActionArgs) {
 	const actor = authorize(context, 'user:manage')
 	const submission = parseWithZod(await request.formData(), { schema: CreateUserSchema })
-	if (submission.status !== 'success') return data({ result: submission.reply({ hideFields: ['password'] }) }, { status: 400 })
+	if (submission.status !== 'success')
+		return data({ result: submission.reply({ hideFields: ['password'] }) }, { status: 400 })
 	const outcome = await createUser(db, { actor, values: submission.value, now: new Date() })
 	if (!outcome.ok) {
 		return data(
@@ -47,19 +48,40 @@ export default function NewUser({ actionData }: Route.ComponentProps) {
 	const chosenRoles = (fields.roles.value as Array<string> | string | undefined) ?? []
 	return (
 		<>
-			<PageHeader title="Create an account" description="One account per person. Tell them the initial password by a separate channel." />
-			<Form method="post" {...getFormProps(form)} className="bg-sheet border-rule max-w-3xl space-y-5 rounded-lg border p-6">
+			<PageHeader
+				title="Create an account"
+				description="One account per person. Tell them the initial password by a separate channel."
+			/>
+			<Form
+				method="post"
+				{...getFormProps(form)}
+				className="bg-sheet border-rule max-w-3xl space-y-5 rounded-lg border p-6"
+			>
 				<FormErrors id={form.errorId} errors={form.errors} />
 				<div className="grid gap-5 md:grid-cols-2">
-					<Field label="Full name" hint="As it should print on signatures" errors={fields.name.errors} inputProps={getInputProps(fields.name, { type: 'text' })} />
-					<Field label="E-mail" errors={fields.email.errors} inputProps={getInputProps(fields.email, { type: 'email' })} />
+					<Field
+						label="Full name"
+						hint="As it should print on signatures"
+						errors={fields.name.errors}
+						inputProps={getInputProps(fields.name, { type: 'text' })}
+					/>
+					<Field
+						label="E-mail"
+						errors={fields.email.errors}
+						inputProps={getInputProps(fields.email, { type: 'email' })}
+					/>
 					<Field
 						label="Initial password"
 						hint="At least 10 characters"
 						errors={fields.password.errors}
 						inputProps={{ ...getInputProps(fields.password, { type: 'password' }), autoComplete: 'new-password' }}
 					/>
-					<Field label="Time zone" hint="For showing signature times, e.g. Europe/Dublin" errors={fields.timeZone.errors} inputProps={getInputProps(fields.timeZone, { type: 'text' })} />
+					<Field
+						label="Time zone"
+						hint="For showing signature times, e.g. Europe/Dublin"
+						errors={fields.timeZone.errors}
+						inputProps={getInputProps(fields.timeZone, { type: 'text' })}
+					/>
 				</div>
 				<RoleCheckboxes
 					key={form.key}

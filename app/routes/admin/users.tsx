@@ -30,10 +30,18 @@ export default function UsersPage({ loaderData }: Route.ComponentProps) {
 				<table className="w-full text-sm">
 					<thead className="border-rule bg-paper border-b">
 						<tr>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">Name</th>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">E-mail</th>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">Roles</th>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">Status</th>
+							<th scope="col" className="px-3 py-2 text-left font-semibold">
+								Name
+							</th>
+							<th scope="col" className="px-3 py-2 text-left font-semibold">
+								E-mail
+							</th>
+							<th scope="col" className="px-3 py-2 text-left font-semibold">
+								Roles
+							</th>
+							<th scope="col" className="px-3 py-2 text-left font-semibold">
+								Status
+							</th>
 						</tr>
 					</thead>
 					<tbody>
@@ -47,7 +55,9 @@ export default function UsersPage({ loaderData }: Route.ComponentProps) {
 								<td className="px-3 py-2">{user.email}</td>
 								<td className="px-3 py-2">{user.roles.map((role) => ROLE_LABELS[role]).join(', ')}</td>
 								<td className="px-3 py-2">
-									<StatusBadge tone={user.status === 'active' ? 'good' : user.status === 'locked' ? 'caution' : 'neutral'}>
+									<StatusBadge
+										tone={user.status === 'active' ? 'good' : user.status === 'locked' ? 'caution' : 'neutral'}
+									>
 										{user.status === 'active' ? 'Active' : user.status === 'locked' ? 'Locked' : 'Deactivated'}
 									</StatusBadge>
 								</td>

@@ -16,10 +16,40 @@ export async function loader({ context, request }: Route.LoaderArgs) {
 	const actor = authorize(context, 'audit:read')
 	const query = AuditQuerySchema.parse(Object.fromEntries(new URL(request.url).searchParams))
 	const rows = await listAuditEventsForExport(db, query)
-	const header = ['id', 'occurred_at_utc', 'actor', 'action', 'entity_type', 'entity_id', 'before', 'after', 'reason', 'ip_address', 'prev_hash', 'hash']
+	const header = [
+		'id',
+		'occurred_at_utc',
+		'actor',
+		'action',
+		'entity_type',
+		'entity_id',
+		'before',
+		'after',
+		'reason',
+		'ip_address',
+		'prev_hash',
+		'hash',
+	]
 	const lines = [header.join(',')]
 	for (const row of rows) {
-		lines.push([row.id, row.occurredAt.toISOString(), row.actorLabel, row.action, row.entityType, row.entityId, row.before, row.after, row.reason, row.ipAddress, row.prevHash, row.hash].map(csvCell).join(','))
+		lines.push(
+			[
+				row.id,
+				row.occurredAt.toISOString(),
+				row.actorLabel,
+				row.action,
+				row.entityType,
+				row.entityId,
+				row.before,
+				row.after,
+				row.reason,
+				row.ipAddress,
+				row.prevHash,
+				row.hash,
+			]
+				.map(csvCell)
+				.join(','),
+		)
 	}
 	await recordAudit(db, {
 		actor: { id: actor.id, label: actor.email },
@@ -30,6 +60,9 @@ export async function loader({ context, request }: Route.LoaderArgs) {
 	})
 	const stamp = new Date().toISOString().slice(0, 19).replaceAll(':', '')
 	return new Response(`\uFEFF${lines.join('\r\n')}\r\n`, {
-		headers: { 'Content-Type': 'text/csv; charset=utf-8', 'Content-Disposition': `attachment; filename="bandproof-audit-${stamp}.csv"` },
+		headers: {
+			'Content-Type': 'text/csv; charset=utf-8',
+			'Content-Disposition': `attachment; filename="bandproof-audit-${stamp}.csv"`,
+		},
 	})
 }

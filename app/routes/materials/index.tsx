@@ -39,7 +39,13 @@ export default function MaterialsList({ loaderData }: Route.ComponentProps) {
 					<label htmlFor="material-search" className="mb-1 block text-sm font-medium">
 						Search
 					</label>
-					<input id="material-search" name="q" defaultValue={query.q ?? ''} placeholder="Code, name, synonym or CAS" className={`${inputClass} w-72`} />
+					<input
+						id="material-search"
+						name="q"
+						defaultValue={query.q ?? ''}
+						placeholder="Code, name, synonym or CAS"
+						className={`${inputClass} w-72`}
+					/>
 				</div>
 				<div>
 					<label htmlFor="material-grade" className="mb-1 block text-sm font-medium">
@@ -67,7 +73,11 @@ export default function MaterialsList({ loaderData }: Route.ComponentProps) {
 			</Form>
 			{rows.length === 0 ? (
 				<EmptyState title={filtered ? 'No material matches these filters' : 'No materials yet'}>
-					{filtered ? 'Try a shorter search, or clear the filters.' : canEdit ? 'Register the first material to start.' : 'Materials registered by authors will be listed here.'}
+					{filtered
+						? 'Try a shorter search, or clear the filters.'
+						: canEdit
+							? 'Register the first material to start.'
+							: 'Materials registered by authors will be listed here.'}
 				</EmptyState>
 			) : (
 				<>
@@ -98,7 +108,9 @@ export default function MaterialsList({ loaderData }: Route.ComponentProps) {
 										<td className="px-3 py-2 tabular-nums">{row.casNumber ?? '—'}</td>
 										<td className="px-3 py-2">{row.formula ?? '—'}</td>
 										<td className="px-3 py-2">{row.grade ?? '—'}</td>
-										<td className="text-ink-soft px-3 py-2 tabular-nums">{new Date(row.updatedAt).toISOString().slice(0, 10)}</td>
+										<td className="text-ink-soft px-3 py-2 tabular-nums">
+											{new Date(row.updatedAt).toISOString().slice(0, 10)}
+										</td>
 									</tr>
 								))}
 							</tbody>

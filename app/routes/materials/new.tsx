@@ -37,7 +37,10 @@ export async function action({ request, context }: Route.ActionArgs) {
 export default function NewMaterial({ actionData }: Route.ComponentProps) {
 	return (
 		<>
-			<PageHeader title="Register a material" description="A starting material that your lab identifies by infrared spectroscopy." />
+			<PageHeader
+				title="Register a material"
+				description="A starting material that your lab identifies by infrared spectroscopy."
+			/>
 			<MaterialForm lastResult={actionData?.result} submitLabel="Register material" />
 		</>
 	)

@@ -12,7 +12,12 @@ export async function loader({ context, params }: Route.LoaderArgs) {
 	const workspace = await getVersionWorkspace(db, params.specId, params.versionId)
 	if (!workspace) throw data({ message: 'No such version.' }, { status: 404 })
 	if (!workspace.content.referenceSpectrumId) {
-		return Response.json({ rows: [], groups: [], caveat: '', message: 'Choose the reference spectrum and save the draft first.' })
+		return Response.json({
+			rows: [],
+			groups: [],
+			caveat: '',
+			message: 'Choose the reference spectrum and save the draft first.',
+		})
 	}
 	const reference = await loadSpectrum(db, workspace.content.referenceSpectrumId)
 	if (!reference) throw data({ message: 'The reference spectrum is missing.' }, { status: 404 })

@@ -8,16 +8,27 @@ import { clientAddress } from '#app/.server/services/audit.ts'
 import { getDossier } from '#app/.server/services/dossiers.ts'
 
 const FormatSchema = z.enum(['pdf', 'docx'])
-const CONTENT_TYPES = { pdf: 'application/pdf', docx: 'application/vnd.openxmlformats-officedocument.wordprocessingml.document' } as const
+const CONTENT_TYPES = {
+	pdf: 'application/pdf',
+	docx: 'application/vnd.openxmlformats-officedocument.wordprocessingml.document',
+} as const
 
 /** The dossier file of a version: stored and byte-identical for signed versions, rendered with a DRAFT mark otherwise. */
 export async function loader({ context, params, request }: Route.LoaderArgs) {
 	const actor = authorize(context, 'spec:read')
 	const format = FormatSchema.safeParse(params.format)
 	if (!format.success) throw data({ message: 'Dossiers come as pdf or docx.' }, { status: 404 })
-	if (!(await getVersionWorkspace(db, params.specId, params.versionId))) throw data({ message: 'No such version.' }, { status: 404 })
+	if (!(await getVersionWorkspace(db, params.specId, params.versionId)))
+		throw data({ message: 'No such version.' }, { status: 404 })
 	const inline = new URL(request.url).searchParams.get('inline') === '1' && format.data === 'pdf'
-	const file = await getDossier(db, { actor, versionId: params.versionId, format: format.data, now: new Date(), ipAddress: clientAddress(request), purpose: inline ? 'preview' : 'download' })
+	const file = await getDossier(db, {
+		actor,
+		versionId: params.versionId,
+		format: format.data,
+		now: new Date(),
+		ipAddress: clientAddress(request),
+		purpose: inline ? 'preview' : 'download',
+	})
 	if (!file) throw data({ message: 'No such version.' }, { status: 404 })
 	return new Response(new Uint8Array(file.bytes), {
 		headers: {

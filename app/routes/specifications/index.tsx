@@ -29,40 +29,87 @@ export default function SpecificationList({ loaderData }: Route.ComponentProps) 
 			<PageHeader
 				title="Specifications"
 				description="Controlled identity-test specifications. The state shown is that of each specification's latest version."
-				actions={canCreate ? <Link to="/specifications/new" className={buttonVariants()}>New specification</Link> : null}
+				actions={
+					canCreate ? (
+						<Link to="/specifications/new" className={buttonVariants()}>
+							New specification
+						</Link>
+					) : null
+				}
 			/>
 			<Form method="get" role="search" className="mb-4 flex flex-wrap items-end gap-3">
 				<div>
-					<label htmlFor="spec-q" className="mb-1 block text-sm font-medium">Search</label>
-					<input id="spec-q" name="q" defaultValue={query.q ?? ''} placeholder="Number, title or material" className={`${inputClass} w-60`} />
+					<label htmlFor="spec-q" className="mb-1 block text-sm font-medium">
+						Search
+					</label>
+					<input
+						id="spec-q"
+						name="q"
+						defaultValue={query.q ?? ''}
+						placeholder="Number, title or material"
+						className={`${inputClass} w-60`}
+					/>
 				</div>
 				<div>
-					<label htmlFor="spec-state" className="mb-1 block text-sm font-medium">State</label>
+					<label htmlFor="spec-state" className="mb-1 block text-sm font-medium">
+						State
+					</label>
 					<select id="spec-state" name="state" defaultValue={query.state ?? ''} className={`${inputClass} w-40`}>
 						<option value="">Any state</option>
-						{Object.entries(VERSION_STATE_LABELS).map(([value, label]) => <option key={value} value={value}>{label}</option>)}
+						{Object.entries(VERSION_STATE_LABELS).map(([value, label]) => (
+							<option key={value} value={value}>
+								{label}
+							</option>
+						))}
 					</select>
 				</div>
 				<div>
-					<label htmlFor="spec-material" className="mb-1 block text-sm font-medium">Material</label>
-					<select id="spec-material" name="materialId" defaultValue={query.materialId ?? ''} className={`${inputClass} w-56`}>
+					<label htmlFor="spec-material" className="mb-1 block text-sm font-medium">
+						Material
+					</label>
+					<select
+						id="spec-material"
+						name="materialId"
+						defaultValue={query.materialId ?? ''}
+						className={`${inputClass} w-56`}
+					>
 						<option value="">Any material</option>
-						{materials.map((material) => <option key={material.id} value={material.id}>{material.code} · {material.name}</option>)}
+						{materials.map((material) => (
+							<option key={material.id} value={material.id}>
+								{material.code} · {material.name}
+							</option>
+						))}
 					</select>
 				</div>
 				<div>
-					<label htmlFor="spec-owner" className="mb-1 block text-sm font-medium">Owner</label>
+					<label htmlFor="spec-owner" className="mb-1 block text-sm font-medium">
+						Owner
+					</label>
 					<select id="spec-owner" name="ownerId" defaultValue={query.ownerId ?? ''} className={`${inputClass} w-48`}>
 						<option value="">Anyone</option>
-						{owners.map((owner) => <option key={owner.id} value={owner.id}>{owner.name}</option>)}
+						{owners.map((owner) => (
+							<option key={owner.id} value={owner.id}>
+								{owner.name}
+							</option>
+						))}
 					</select>
 				</div>
-				<button type="submit" className={buttonVariants({ variant: 'secondary' })}>Apply</button>
-				{filtered ? <Link to="/specifications" className={buttonVariants({ variant: 'quiet' })}>Clear filters</Link> : null}
+				<button type="submit" className={buttonVariants({ variant: 'secondary' })}>
+					Apply
+				</button>
+				{filtered ? (
+					<Link to="/specifications" className={buttonVariants({ variant: 'quiet' })}>
+						Clear filters
+					</Link>
+				) : null}
 			</Form>
 			{rows.length === 0 ? (
 				<EmptyState title={filtered ? 'No specification matches these filters' : 'No specifications yet'}>
-					{filtered ? 'Clear the filters to see every specification.' : canCreate ? 'Start one for a registered material: you will draft its method, reference spectrum, band table and acceptance criteria.' : 'Specifications drafted by authors will be listed here.'}
+					{filtered
+						? 'Clear the filters to see every specification.'
+						: canCreate
+							? 'Start one for a registered material: you will draft its method, reference spectrum, band table and acceptance criteria.'
+							: 'Specifications drafted by authors will be listed here.'}
 				</EmptyState>
 			) : (
 				<>
@@ -70,23 +117,44 @@ export default function SpecificationList({ loaderData }: Route.ComponentProps) 
 						<table className="w-full text-sm">
 							<thead className="border-rule bg-paper border-b">
 								<tr>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">Document</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">Title</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">Material</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">Version</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">Owner</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">Last change</th>
+									<th scope="col" className="px-3 py-2 text-left font-semibold">
+										Document
+									</th>
+									<th scope="col" className="px-3 py-2 text-left font-semibold">
+										Title
+									</th>
+									<th scope="col" className="px-3 py-2 text-left font-semibold">
+										Material
+									</th>
+									<th scope="col" className="px-3 py-2 text-left font-semibold">
+										Version
+									</th>
+									<th scope="col" className="px-3 py-2 text-left font-semibold">
+										Owner
+									</th>
+									<th scope="col" className="px-3 py-2 text-left font-semibold">
+										Last change
+									</th>
 								</tr>
 							</thead>
 							<tbody>
 								{rows.map((row) => (
 									<tr key={row.id} className="border-rule border-b last:border-0">
 										<td className="px-3 py-2 font-medium whitespace-nowrap">
-											<Link to={`/specifications/${row.id}/versions/${row.versionId}`} className="text-accent underline-offset-4 hover:underline">{row.documentNumber}</Link>
+											<Link
+												to={`/specifications/${row.id}/versions/${row.versionId}`}
+												className="text-accent underline-offset-4 hover:underline"
+											>
+												{row.documentNumber}
+											</Link>
 										</td>
 										<td className="px-3 py-2">{row.title}</td>
-										<td className="px-3 py-2">{row.materialCode} · {row.materialName}</td>
-										<td className="px-3 py-2 whitespace-nowrap">v{row.versionNumber} <VersionStateBadge state={row.state} /></td>
+										<td className="px-3 py-2">
+											{row.materialCode} · {row.materialName}
+										</td>
+										<td className="px-3 py-2 whitespace-nowrap">
+											v{row.versionNumber} <VersionStateBadge state={row.state} />
+										</td>
 										<td className="px-3 py-2">{row.ownerName}</td>
 										<td className="text-ink-soft px-3 py-2 tabular-nums">{row.updatedAt.slice(0, 10)}</td>
 									</tr>

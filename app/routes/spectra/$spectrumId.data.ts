@@ -21,7 +21,14 @@ export async function loader({ context, params, request }: Route.LoaderArgs) {
 	const query = DataQuerySchema.parse(Object.fromEntries(new URL(request.url).searchParams))
 	const thinned = thinForDisplay(stored.spectrum.x, stored.spectrum.y, query)
 	return Response.json(
-		{ id: params.spectrumId, label: stored.fileName, unit: 'absorbance', points: stored.spectrum.x.length, x: thinned.x, y: thinned.y },
+		{
+			id: params.spectrumId,
+			label: stored.fileName,
+			unit: 'absorbance',
+			points: stored.spectrum.x.length,
+			x: thinned.x,
+			y: thinned.y,
+		},
 		{ headers: { 'Cache-Control': 'private, max-age=300' } },
 	)
 }

@@ -28,13 +28,24 @@ export default function SpectrumPage({ loaderData }: Route.ComponentProps) {
 	const facts: Array<[string, string]> = [
 		['Material', record.materialCode ? `${record.materialCode} · ${record.materialName}` : 'Not linked'],
 		['Purpose', record.purpose.replace('-', ' ')],
-		['Points', `${record.points.toLocaleString('en')} from ${Math.round(record.maxWavenumber)} to ${Math.round(record.minWavenumber)} cm⁻¹`],
-		['As stored in the file', `${record.format}; x in ${record.xUnits}, y as ${record.yUnits} (${record.ordinate.replace(/-/g, ' ')})`],
+		[
+			'Points',
+			`${record.points.toLocaleString('en')} from ${Math.round(record.maxWavenumber)} to ${Math.round(record.minWavenumber)} cm⁻¹`,
+		],
+		[
+			'As stored in the file',
+			`${record.format}; x in ${record.xUnits}, y as ${record.yUnits} (${record.ordinate.replace(/-/g, ' ')})`,
+		],
 		['Technique', record.technique ?? '—'],
 		['Instrument', record.instrument ?? '—'],
 		['Resolution', record.resolution ? `${record.resolution} cm⁻¹` : '—'],
 		['Acquired on', record.acquiredOn ?? '—'],
-		['Reference standard', [record.referenceStandardName, record.referenceStandardLot && `lot ${record.referenceStandardLot}`].filter(Boolean).join(', ') || '—'],
+		[
+			'Reference standard',
+			[record.referenceStandardName, record.referenceStandardLot && `lot ${record.referenceStandardLot}`]
+				.filter(Boolean)
+				.join(', ') || '—',
+		],
 		['Uploaded', `${formatUtc(record.uploadedAt)} by ${record.uploaderName}`],
 		['SHA-256 of the original file', record.sha256],
 	]
@@ -42,10 +53,16 @@ export default function SpectrumPage({ loaderData }: Route.ComponentProps) {
 		<>
 			<PageHeader
 				title={record.fileName}
-				description={record.title && record.title !== record.fileName ? record.title : 'Absorbance on a wavenumber axis, converted from the original file.'}
+				description={
+					record.title && record.title !== record.fileName
+						? record.title
+						: 'Absorbance on a wavenumber axis, converted from the original file.'
+				}
 				actions={
 					<>
-						{record.lockedAt ? <StatusBadge tone="neutral">Locked since {formatUtc(record.lockedAt)}</StatusBadge> : null}
+						{record.lockedAt ? (
+							<StatusBadge tone="neutral">Locked since {formatUtc(record.lockedAt)}</StatusBadge>
+						) : null}
 						<a href={`/spectra/${record.id}/original`} className={buttonVariants({ variant: 'secondary' })} download>
 							Download the original
 						</a>
@@ -54,7 +71,9 @@ export default function SpectrumPage({ loaderData }: Route.ComponentProps) {
 			/>
 			<SpectrumViewer
 				sources={[{ id: record.id, label: record.fileName, url: `/spectra/${record.id}/data` }]}
-				peaks={analysis?.peaks.filter((peak) => peak.relative >= 0.15).map((peak) => ({ position: peak.position, label: String(Math.round(peak.position)) }))}
+				peaks={analysis?.peaks
+					.filter((peak) => peak.relative >= 0.15)
+					.map((peak) => ({ position: peak.position, label: String(Math.round(peak.position)) }))}
 				exclusionRegions={[{ from: 2280, to: 2400, label: 'CO₂' }]}
 			/>
 			<div className="mt-6 grid gap-6 xl:grid-cols-2">
@@ -74,7 +93,10 @@ export default function SpectrumPage({ loaderData }: Route.ComponentProps) {
 							<p className="font-semibold">Notes from the import</p>
 							<ul className="mt-1 list-disc pl-5">
 								{record.warnings.map((warning, index) => (
-									<li key={index}>{warning.line ? `line ${warning.line}: ` : ''}{warning.message}</li>
+									<li key={index}>
+										{warning.line ? `line ${warning.line}: ` : ''}
+										{warning.message}
+									</li>
 								))}
 							</ul>
 						</div>
@@ -112,11 +134,21 @@ export default function SpectrumPage({ loaderData }: Route.ComponentProps) {
 						<table className="w-full text-sm">
 							<thead className="bg-sheet sticky top-0">
 								<tr className="border-rule border-b">
-									<th scope="col" className="px-2 py-1.5 text-right font-semibold">Position (cm⁻¹)</th>
-									<th scope="col" className="px-2 py-1.5 text-right font-semibold">Absorbance</th>
-									<th scope="col" className="px-2 py-1.5 text-right font-semibold">Relative</th>
-									<th scope="col" className="px-2 py-1.5 text-right font-semibold">Width (cm⁻¹)</th>
-									<th scope="col" className="px-2 py-1.5 text-left font-semibold">Shape</th>
+									<th scope="col" className="px-2 py-1.5 text-right font-semibold">
+										Position (cm⁻¹)
+									</th>
+									<th scope="col" className="px-2 py-1.5 text-right font-semibold">
+										Absorbance
+									</th>
+									<th scope="col" className="px-2 py-1.5 text-right font-semibold">
+										Relative
+									</th>
+									<th scope="col" className="px-2 py-1.5 text-right font-semibold">
+										Width (cm⁻¹)
+									</th>
+									<th scope="col" className="px-2 py-1.5 text-left font-semibold">
+										Shape
+									</th>
 								</tr>
 							</thead>
 							<tbody>
@@ -135,7 +167,9 @@ export default function SpectrumPage({ loaderData }: Route.ComponentProps) {
 				</section>
 			) : null}
 			<p className="mt-6 text-sm">
-				<Link to="/spectra" className="text-accent underline underline-offset-4">Back to the library</Link>
+				<Link to="/spectra" className="text-accent underline underline-offset-4">
+					Back to the library
+				</Link>
 			</p>
 		</>
 	)

@@ -38,33 +38,69 @@ export default function SpectraLibrary({ loaderData }: Route.ComponentProps) {
 			/>
 			<Form method="get" role="search" className="mb-4 flex flex-wrap items-end gap-3">
 				<div>
-					<label htmlFor="spectra-q" className="mb-1 block text-sm font-medium">Search</label>
-					<input id="spectra-q" name="q" defaultValue={query.q ?? ''} placeholder="File, title, lot or material" className={`${inputClass} w-64`} />
+					<label htmlFor="spectra-q" className="mb-1 block text-sm font-medium">
+						Search
+					</label>
+					<input
+						id="spectra-q"
+						name="q"
+						defaultValue={query.q ?? ''}
+						placeholder="File, title, lot or material"
+						className={`${inputClass} w-64`}
+					/>
 				</div>
 				<div>
-					<label htmlFor="spectra-purpose" className="mb-1 block text-sm font-medium">Purpose</label>
-					<select id="spectra-purpose" name="purpose" defaultValue={query.purpose ?? ''} className={`${inputClass} w-56`}>
+					<label htmlFor="spectra-purpose" className="mb-1 block text-sm font-medium">
+						Purpose
+					</label>
+					<select
+						id="spectra-purpose"
+						name="purpose"
+						defaultValue={query.purpose ?? ''}
+						className={`${inputClass} w-56`}
+					>
 						<option value="">Any purpose</option>
 						{Object.entries(SPECTRUM_PURPOSE_LABELS).map(([value, label]) => (
-							<option key={value} value={value}>{label}</option>
+							<option key={value} value={value}>
+								{label}
+							</option>
 						))}
 					</select>
 				</div>
 				<div>
-					<label htmlFor="spectra-material" className="mb-1 block text-sm font-medium">Material</label>
-					<select id="spectra-material" name="materialId" defaultValue={query.materialId ?? ''} className={`${inputClass} w-56`}>
+					<label htmlFor="spectra-material" className="mb-1 block text-sm font-medium">
+						Material
+					</label>
+					<select
+						id="spectra-material"
+						name="materialId"
+						defaultValue={query.materialId ?? ''}
+						className={`${inputClass} w-56`}
+					>
 						<option value="">Any material</option>
 						{materials.map((material) => (
-							<option key={material.id} value={material.id}>{material.code} · {material.name}</option>
+							<option key={material.id} value={material.id}>
+								{material.code} · {material.name}
+							</option>
 						))}
 					</select>
 				</div>
-				<button type="submit" className={buttonVariants({ variant: 'secondary' })}>Apply</button>
-				{filtered ? <Link to="/spectra" className={buttonVariants({ variant: 'quiet' })}>Clear filters</Link> : null}
+				<button type="submit" className={buttonVariants({ variant: 'secondary' })}>
+					Apply
+				</button>
+				{filtered ? (
+					<Link to="/spectra" className={buttonVariants({ variant: 'quiet' })}>
+						Clear filters
+					</Link>
+				) : null}
 			</Form>
 			{rows.length === 0 ? (
 				<EmptyState title={filtered ? 'No spectrum matches these filters' : 'The library is empty'}>
-					{filtered ? 'Clear the filters to see every spectrum.' : canUpload ? 'Upload reference spectra of your materials to start: JCAMP-DX or XY text files.' : 'Spectra uploaded by authors will be listed here.'}
+					{filtered
+						? 'Clear the filters to see every spectrum.'
+						: canUpload
+							? 'Upload reference spectra of your materials to start: JCAMP-DX or XY text files.'
+							: 'Spectra uploaded by authors will be listed here.'}
 				</EmptyState>
 			) : (
 				<>
@@ -72,28 +108,55 @@ export default function SpectraLibrary({ loaderData }: Route.ComponentProps) {
 						<table className="w-full text-sm">
 							<thead className="border-rule bg-paper border-b">
 								<tr>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">File</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">Material</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">Purpose</th>
-									<th scope="col" className="px-3 py-2 text-right font-semibold">Points</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">Range (cm⁻¹)</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">Uploaded</th>
+									<th scope="col" className="px-3 py-2 text-left font-semibold">
+										File
+									</th>
+									<th scope="col" className="px-3 py-2 text-left font-semibold">
+										Material
+									</th>
+									<th scope="col" className="px-3 py-2 text-left font-semibold">
+										Purpose
+									</th>
+									<th scope="col" className="px-3 py-2 text-right font-semibold">
+										Points
+									</th>
+									<th scope="col" className="px-3 py-2 text-left font-semibold">
+										Range (cm⁻¹)
+									</th>
+									<th scope="col" className="px-3 py-2 text-left font-semibold">
+										Uploaded
+									</th>
 								</tr>
 							</thead>
 							<tbody>
 								{rows.map((row) => (
 									<tr key={row.id} className="border-rule border-b last:border-0">
 										<td className="px-3 py-2">
-											<Link to={`/spectra/${row.id}`} className="text-accent font-medium break-all underline-offset-4 hover:underline">{row.fileName}</Link>
-											{row.title && row.title !== row.fileName ? <span className="text-ink-faint block text-xs">{row.title}</span> : null}
+											<Link
+												to={`/spectra/${row.id}`}
+												className="text-accent font-medium break-all underline-offset-4 hover:underline"
+											>
+												{row.fileName}
+											</Link>
+											{row.title && row.title !== row.fileName ? (
+												<span className="text-ink-faint block text-xs">{row.title}</span>
+											) : null}
 										</td>
-										<td className="px-3 py-2">{row.materialCode ? `${row.materialCode} · ${row.materialName}` : '—'}</td>
+										<td className="px-3 py-2">
+											{row.materialCode ? `${row.materialCode} · ${row.materialName}` : '—'}
+										</td>
 										<td className="px-3 py-2">
 											<span className="capitalize">{row.purpose.replace('-', ' ')}</span>
-											{row.locked ? <span className="ml-2"><StatusBadge tone="neutral">Locked</StatusBadge></span> : null}
+											{row.locked ? (
+												<span className="ml-2">
+													<StatusBadge tone="neutral">Locked</StatusBadge>
+												</span>
+											) : null}
 										</td>
 										<td className="px-3 py-2 text-right tabular-nums">{row.points.toLocaleString('en')}</td>
-										<td className="px-3 py-2 tabular-nums">{Math.round(row.maxWavenumber)}–{Math.round(row.minWavenumber)}</td>
+										<td className="px-3 py-2 tabular-nums">
+											{Math.round(row.maxWavenumber)}–{Math.round(row.minWavenumber)}
+										</td>
 										<td className="text-ink-soft px-3 py-2 tabular-nums">{row.uploadedAt.slice(0, 10)}</td>
 									</tr>
 								))}

@@ -12,12 +12,18 @@ export async function action({ request, context }: Route.ActionArgs) {
 	const actor = authorize(context, 'spectrum:upload')
 	const formData = await parseUpload(request)
 	const file = formData.get('file')
-	if (!(file instanceof File)) return Response.json({ status: 'failed', fileName: '', message: 'No file was sent.' }, { status: 400 })
+	if (!(file instanceof File))
+		return Response.json({ status: 'failed', fileName: '', message: 'No file was sent.' }, { status: 400 })
 	// Empty fields mean "not given", as the page's own form treats them.
-	const fields = Object.fromEntries([...formData.entries()].filter(([, value]) => typeof value === 'string' && value.trim() !== ''))
+	const fields = Object.fromEntries(
+		[...formData.entries()].filter(([, value]) => typeof value === 'string' && value.trim() !== ''),
+	)
 	const metadata = SpectrumMetadataSchema.safeParse(fields)
 	if (!metadata.success) {
-		return Response.json({ status: 'failed', fileName: file.name, message: z.prettifyError(metadata.error) }, { status: 400 })
+		return Response.json(
+			{ status: 'failed', fileName: file.name, message: z.prettifyError(metadata.error) },
+			{ status: 400 },
+		)
 	}
 	const outcome = await storeSpectrumFile(db, {
 		actor,

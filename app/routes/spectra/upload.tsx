@@ -26,14 +26,29 @@ export async function action({ request, context }: Route.ActionArgs) {
 	const actor = authorize(context, 'spectrum:upload')
 	const formData = await parseUpload(request)
 	const submission = parseWithZod(formData, { schema: SpectrumMetadataSchema })
-	if (submission.status !== 'success') return data({ result: submission.reply(), outcomes: [] as Array<UploadOutcome> }, { status: 400 })
+	if (submission.status !== 'success')
+		return data({ result: submission.reply(), outcomes: [] as Array<UploadOutcome> }, { status: 400 })
 	const files = formData.getAll('files').filter((value): value is File => value instanceof File && value.size > 0)
 	if (files.length === 0) {
-		return data({ result: submission.reply({ formErrors: ['Choose at least one file to upload.'] }), outcomes: [] as Array<UploadOutcome> }, { status: 400 })
+		return data(
+			{
+				result: submission.reply({ formErrors: ['Choose at least one file to upload.'] }),
+				outcomes: [] as Array<UploadOutcome>,
+			},
+			{ status: 400 },
+		)
 	}
 	const outcomes: Array<UploadOutcome> = []
 	for (const file of files) {
-		outcomes.push(await storeSpectrumFile(db, { actor, fileName: file.name, bytes: new Uint8Array(await file.arrayBuffer()), metadata: submission.value, now: new Date() }))
+		outcomes.push(
+			await storeSpectrumFile(db, {
+				actor,
+				fileName: file.name,
+				bytes: new Uint8Array(await file.arrayBuffer()),
+				metadata: submission.value,
+				now: new Date(),
+			}),
+		)
 	}
 	return data({ result: submission.reply(), outcomes })
 }
@@ -61,7 +76,11 @@ export default function UploadSpectra({ loaderData, actionData }: Route.Componen
 
 	async function uploadOneByOne(formData: FormData) {
 		setRunning(true)
-		const batch = files.map((file, index) => ({ key: `${index}-${file.name}`, fileName: file.name, state: 'waiting' as const }))
+		const batch = files.map((file, index) => ({
+			key: `${index}-${file.name}`,
+			fileName: file.name,
+			state: 'waiting' as const,
+		}))
 		setRows(batch)
 		for (const [index, file] of files.entries()) {
 			setRows((current) => current.map((row, i) => (i === index ? { ...row, state: 'uploading' } : row)))
@@ -77,10 +96,18 @@ export default function UploadSpectra({ loaderData, actionData }: Route.Componen
 						? (payload as UploadOutcome)
 						: { fileName: file.name, status: 'failed', message: `The server answered ${response.status}.` }
 				if (payload && typeof payload === 'object' && 'message' in payload && !('status' in payload)) {
-					outcome = { fileName: file.name, status: 'failed', message: String((payload as { message: unknown }).message) }
+					outcome = {
+						fileName: file.name,
+						status: 'failed',
+						message: String((payload as { message: unknown }).message),
+					}
 				}
 			} catch {
-				outcome = { fileName: file.name, status: 'failed', message: 'The connection failed; nothing of this file was stored. Try again.' }
+				outcome = {
+					fileName: file.name,
+					status: 'failed',
+					message: 'The connection failed; nothing of this file was stored. Try again.',
+				}
 			}
 			setRows((current) => current.map((row, i) => (i === index ? { ...row, state: 'done', outcome } : row)))
 		}
@@ -89,7 +116,9 @@ export default function UploadSpectra({ loaderData, actionData }: Route.Componen
 	}
 
 	const done = rows.filter((row) => row.state === 'done').length
-	const shownOutcomes: Array<UploadOutcome> = rows.length ? rows.flatMap((row) => (row.outcome ? [row.outcome] : [])) : (actionData?.outcomes ?? [])
+	const shownOutcomes: Array<UploadOutcome> = rows.length
+		? rows.flatMap((row) => (row.outcome ? [row.outcome] : []))
+		: (actionData?.outcomes ?? [])
 	return (
 		<>
 			<PageHeader
@@ -101,7 +130,12 @@ export default function UploadSpectra({ loaderData, actionData }: Route.Componen
 					</Link>
 				}
 			/>
-			<Form method="post" encType="multipart/form-data" {...getFormProps(form)} className="bg-sheet border-rule max-w-4xl space-y-5 rounded-lg border p-6">
+			<Form
+				method="post"
+				encType="multipart/form-data"
+				{...getFormProps(form)}
+				className="bg-sheet border-rule max-w-4xl space-y-5 rounded-lg border p-6"
+			>
 				<FormErrors id={form.errorId} errors={form.errors} />
 				<div
 					onDragOver={(event) => {
@@ -114,7 +148,10 @@ export default function UploadSpectra({ loaderData, actionData }: Route.Componen
 						setDragging(false)
 						setFiles((current) => [...current, ...Array.from(event.dataTransfer.files)])
 					}}
-					className={cn('rounded-lg border-2 border-dashed p-6 text-center', dragging ? 'border-accent bg-accent-soft' : 'border-rule-strong')}
+					className={cn(
+						'rounded-lg border-2 border-dashed p-6 text-center',
+						dragging ? 'border-accent bg-accent-soft' : 'border-rule-strong',
+					)}
 				>
 					<p className="text-sm font-medium">Drop spectrum files here, or choose them:</p>
 					<label htmlFor="spectrum-files" className="sr-only">
@@ -136,7 +173,9 @@ export default function UploadSpectra({ loaderData, actionData }: Route.Componen
 					) : null}
 				</div>
 				<fieldset className="grid gap-5 md:grid-cols-2">
-					<legend className="mb-2 text-sm font-semibold">About these spectra (applies to every file of the batch)</legend>
+					<legend className="mb-2 text-sm font-semibold">
+						About these spectra (applies to every file of the batch)
+					</legend>
 					<div>
 						<label htmlFor={fields.purpose.id} className="mb-1 block text-sm font-medium">
 							Purpose
@@ -162,12 +201,38 @@ export default function UploadSpectra({ loaderData, actionData }: Route.Componen
 							))}
 						</select>
 					</div>
-					<Field label="Technique" hint="e.g. ATR (diamond), KBr disc" errors={fields.technique.errors} inputProps={getInputProps(fields.technique, { type: 'text' })} />
-					<Field label="Instrument" errors={fields.instrument.errors} inputProps={getInputProps(fields.instrument, { type: 'text' })} />
-					<Field label="Resolution (cm⁻¹)" errors={fields.resolution.errors} inputProps={{ ...getInputProps(fields.resolution, { type: 'text' }), inputMode: 'decimal' }} />
-					<Field label="Acquisition date" errors={fields.acquiredOn.errors} inputProps={getInputProps(fields.acquiredOn, { type: 'date' })} />
-					<Field label="Reference standard" hint="Name of the reference substance" errors={fields.referenceStandardName.errors} inputProps={getInputProps(fields.referenceStandardName, { type: 'text' })} />
-					<Field label="Reference standard lot" errors={fields.referenceStandardLot.errors} inputProps={getInputProps(fields.referenceStandardLot, { type: 'text' })} />
+					<Field
+						label="Technique"
+						hint="e.g. ATR (diamond), KBr disc"
+						errors={fields.technique.errors}
+						inputProps={getInputProps(fields.technique, { type: 'text' })}
+					/>
+					<Field
+						label="Instrument"
+						errors={fields.instrument.errors}
+						inputProps={getInputProps(fields.instrument, { type: 'text' })}
+					/>
+					<Field
+						label="Resolution (cm⁻¹)"
+						errors={fields.resolution.errors}
+						inputProps={{ ...getInputProps(fields.resolution, { type: 'text' }), inputMode: 'decimal' }}
+					/>
+					<Field
+						label="Acquisition date"
+						errors={fields.acquiredOn.errors}
+						inputProps={getInputProps(fields.acquiredOn, { type: 'date' })}
+					/>
+					<Field
+						label="Reference standard"
+						hint="Name of the reference substance"
+						errors={fields.referenceStandardName.errors}
+						inputProps={getInputProps(fields.referenceStandardName, { type: 'text' })}
+					/>
+					<Field
+						label="Reference standard lot"
+						errors={fields.referenceStandardLot.errors}
+						inputProps={getInputProps(fields.referenceStandardLot, { type: 'text' })}
+					/>
 				</fieldset>
 				<TextareaField label="Notes" errors={fields.notes.errors} textareaProps={getTextareaProps(fields.notes)} />
 				<div className="flex items-center gap-4">
@@ -176,7 +241,12 @@ export default function UploadSpectra({ loaderData, actionData }: Route.Componen
 					</Button>
 					{rows.length ? (
 						<div className="flex flex-1 items-center gap-3" aria-live="polite">
-							<progress value={done} max={rows.length} className="accent-accent h-2 w-48" aria-label="Upload progress" />
+							<progress
+								value={done}
+								max={rows.length}
+								className="accent-accent h-2 w-48"
+								aria-label="Upload progress"
+							/>
 							<span className="text-ink-soft text-sm">
 								{done} of {rows.length} files
 							</span>
@@ -196,8 +266,13 @@ function UploadResults({ rows, outcomes }: { rows: Array<Row>; outcomes: Array<U
 			<h2 className="border-rule border-b px-4 py-3 text-base font-bold">Results</h2>
 			<ul>
 				{outcomes.map((outcome, index) => (
-					<li key={`${outcome.fileName}-${index}`} className="border-rule flex items-start gap-3 border-b px-4 py-3 text-sm last:border-0">
-						<StatusBadge tone={outcome.status === 'stored' ? 'good' : outcome.status === 'duplicate' ? 'neutral' : 'danger'}>
+					<li
+						key={`${outcome.fileName}-${index}`}
+						className="border-rule flex items-start gap-3 border-b px-4 py-3 text-sm last:border-0"
+					>
+						<StatusBadge
+							tone={outcome.status === 'stored' ? 'good' : outcome.status === 'duplicate' ? 'neutral' : 'danger'}
+						>
 							{outcome.status === 'stored' ? 'Stored' : outcome.status === 'duplicate' ? 'Already stored' : 'Refused'}
 						</StatusBadge>
 						<div className="min-w-0 flex-1">
@@ -206,7 +281,8 @@ function UploadResults({ rows, outcomes }: { rows: Array<Row>; outcomes: Array<U
 							{outcome.status === 'duplicate' ? <p className="text-ink-soft">{outcome.message}</p> : null}
 							{outcome.status === 'stored' ? (
 								<p className="text-ink-soft">
-									{outcome.points} points.{outcome.warnings.length ? ` Notes from the import: ${outcome.warnings.join(' ')}` : ''}
+									{outcome.points} points.
+									{outcome.warnings.length ? ` Notes from the import: ${outcome.warnings.join(' ')}` : ''}
 								</p>
 							) : null}
 						</div>

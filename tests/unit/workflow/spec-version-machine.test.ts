@@ -600,5 +600,7 @@ test('[WF-020] someone who edited the draft counts as its author: they may not r
 	const coEditor = person('cora', 'reviewer', 'approver')
 	const snapshot = version('in_review', { coAuthorIds: [coEditor.id] })
 	expect(decideTransition(snapshot, eventFor('sign-reviewed'), coEditor, NOW)).toMatchObject({ ok: false })
-	expect(decideTransition(snapshot, eventFor('sign-reviewed'), person('rex', 'reviewer'), NOW)).toMatchObject({ ok: true })
+	expect(decideTransition(snapshot, eventFor('sign-reviewed'), person('rex', 'reviewer'), NOW)).toMatchObject({
+		ok: true,
+	})
 })

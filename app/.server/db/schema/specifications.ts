@@ -1,4 +1,16 @@
-import { type AnyPgColumn, index, integer, jsonb, pgEnum, pgTable, real, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core'
+import {
+	type AnyPgColumn,
+	index,
+	integer,
+	jsonb,
+	pgEnum,
+	pgTable,
+	real,
+	text,
+	timestamp,
+	unique,
+	uuid,
+} from 'drizzle-orm/pg-core'
 import { users } from './auth.ts'
 import { materials } from './materials.ts'
 import { spectra } from './spectra.ts'
