@@ -34,6 +34,10 @@ function freePort(): Promise<number> {
 }
 
 const only = process.argv[2]
+if (!only || only === 'types') {
+	run('Route types', bin('react-router'), ['typegen'])
+	run('Type check', bin('tsc'), ['--noEmit'])
+}
 if (!only || only === 'unit') run('Unit tests', bin('vitest'), ['run', '--project', 'unit'])
 if (!only || only === 'integration')
 	run('Integration tests (PostgreSQL)', bin('vitest'), ['run', '--project', 'integration'])

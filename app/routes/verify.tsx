@@ -19,12 +19,12 @@ import { VERSION_STATE_LABELS } from '#shared/specs/state-labels.ts'
 const MAX_COPY_BYTES = 25 * 1024 * 1024
 
 export function loader({ context }: Route.LoaderArgs) {
-	authorize(context, 'spec:read')
+	authorize(context, 'dossier:verify')
 	return null
 }
 
 export async function action({ request, context }: Route.ActionArgs) {
-	const actor = authorize(context, 'spec:read')
+	const actor = authorize(context, 'dossier:verify')
 	let formData: FormData
 	try {
 		formData = await parseFormData(request, { maxFileSize: MAX_COPY_BYTES, maxFiles: 1 }, (file) => file)

@@ -29,7 +29,9 @@ const grants = {
 	'material:edit': ['author', 'admin'],
 	'spectrum:read': LAB_STAFF,
 	'spectrum:upload': ['author', 'admin'],
-	'spec:read': ['author', 'reviewer', 'approver', 'inspector', 'admin'],
+	// Inspectors read released versions only, through their access grants (the inspection area), never drafts.
+	'spec:read': LAB_STAFF,
+	'dossier:verify': ['author', 'reviewer', 'approver', 'inspector', 'admin'],
 	'spec:create': ['author'],
 	'spec:edit': ['author'],
 	'spec-version:sign': ['reviewer', 'approver'],

@@ -154,6 +154,8 @@ test('[WF-E2E-001] a draft goes through redline, rejection, two signatures and a
 	)
 	await snapshot(page, 'review-signing-dialog')
 	await sign(page, 'reviewed', 'not-my-password')
+	// NOTE: the refusal is rendered in "Your next step" while the modal signing dialog stays open over it, so the signer
+	// does not see it until they cancel the dialog (reported; the check below passes because the text is in the page).
 	await expect(page.getByText('The password is not right; nothing was signed.')).toBeVisible()
 	await snapshot(page, 'review-wrong-password')
 	await page.goto(page.url())

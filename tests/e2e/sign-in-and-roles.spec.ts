@@ -5,7 +5,7 @@ const NAVIGATION_BY_ROLE = {
 		sees: ['Materials', 'Spectra', 'Specifications', 'My queue'],
 		hidden: ['Users and roles', 'Inspection'],
 	},
-	'reviewer@bandproof.test': { sees: ['Materials', 'My queue'], hidden: ['Users and roles', 'Specifications'] },
+	'reviewer@bandproof.test': { sees: ['Materials', 'Specifications', 'My queue', 'Verify a copy'], hidden: ['Users and roles', 'Inspection'] },
 	'approver@bandproof.test': { sees: ['Materials', 'My queue', 'Audit trail'], hidden: ['Users and roles'] },
 	'inspector@bandproof.test': {
 		sees: ['Inspection', 'Audit trail'],
@@ -44,6 +44,8 @@ test('[AUTH-002] an inspector asking for the admin page gets 403 from the server
 	// The data request a client-side navigation would make is refused too, not only the HTML page.
 	const dataResponse = await page.request.get('/admin/users.data')
 	expect(dataResponse.status()).toBe(403)
+	// Drafts are never shown to an inspector, even by typing the address (PRODUCT.md §2).
+	expect((await page.goto('/specifications'))?.status()).toBe(403)
 	await snapshot(page, 'inspector-403')
 })
 

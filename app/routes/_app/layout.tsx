@@ -38,7 +38,7 @@ const NAVIGATION: Array<NavGroup> = [
 		items: [
 			{ to: '/queue', label: 'My queue', permission: 'queue:read' },
 			{ to: '/audit', label: 'Audit trail', permission: 'audit:read' },
-			{ to: '/verify', label: 'Verify a copy', permission: 'spec:read' },
+			{ to: '/verify', label: 'Verify a copy', permission: 'dossier:verify' },
 			{ to: '/inspection', label: 'Inspection', permission: 'inspection:read' },
 		],
 	},

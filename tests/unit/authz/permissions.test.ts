@@ -12,6 +12,9 @@ const EXPECTED: Array<[Permission, Array<Role>]> = [
 	['spec-version:sign', ['reviewer', 'approver']],
 	['inspection:read', ['inspector']],
 	['mailbox:read', ['admin']],
+	// Inspectors never read drafts: released versions reach them through access grants only (PRODUCT.md §2).
+	['spec:read', ['author', 'reviewer', 'approver', 'admin']],
+	['dossier:verify', ['author', 'reviewer', 'approver', 'inspector', 'admin']],
 ]
 const ALL: Array<Role> = ['author', 'reviewer', 'approver', 'inspector', 'admin']
 
