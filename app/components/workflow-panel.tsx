@@ -1,4 +1,4 @@
-import { useRef } from 'react'
+import { useEffect, useRef } from 'react'
 import { Form, useNavigation } from 'react-router'
 import { FormErrors, inputClass } from '#app/components/forms.tsx'
 import { Button } from '#app/components/ui/button.tsx'
@@ -45,7 +45,30 @@ export function WorkflowActions({
 							action={action}
 							statement={action.action === 'sign-approved' ? statements.approved : statements.reviewed}
 							busy={busy}
+							errors={errors}
 						/>
+					) : action.action === 'retire' ? (
+						<details key={action.action} className="border-rule min-w-80 flex-1 rounded-md border p-3 text-sm">
+							<summary className="text-ink-soft cursor-pointer">Retire this version…</summary>
+							<Form method="post" className="mt-2 flex flex-col gap-2">
+								<input type="hidden" name="intent" value="workflow" />
+								<input type="hidden" name="step" value="retire" />
+								<label htmlFor="reason-retire" className="font-medium">
+									Reason (required): the version stops being in force and no later version replaces it
+								</label>
+								<textarea
+									id="reason-retire"
+									name="reason"
+									className={`${inputClass} min-h-16`}
+									disabled={!action.enabled}
+								/>
+								<div>
+									<Button type="submit" variant="danger" disabled={!action.enabled || busy}>
+										Retire
+									</Button>
+								</div>
+							</Form>
+						</details>
 					) : action.needs.reason !== 'none' ? (
 						<Form
 							key={action.action}
@@ -92,8 +115,23 @@ export function WorkflowActions({
 	)
 }
 
-function SigningDialog({ action, statement, busy }: { action: AvailableAction; statement: string; busy: boolean }) {
+function SigningDialog({
+	action,
+	statement,
+	busy,
+	errors,
+}: {
+	action: AvailableAction
+	statement: string
+	busy: boolean
+	errors?: Array<string>
+}) {
 	const dialog = useRef<HTMLDialogElement>(null)
+	const password = useRef<HTMLInputElement>(null)
+	// A refused signature (wrong password) comes back while the dialog is still open: clear the password.
+	useEffect(() => {
+		if (errors?.length && password.current) password.current.value = ''
+	}, [errors])
 	const today = new Date(Date.now() - new Date().getTimezoneOffset() * 60_000).toISOString().slice(0, 16)
 	return (
 		<div className="flex flex-col gap-1">
@@ -113,7 +151,11 @@ function SigningDialog({ action, statement, busy }: { action: AvailableAction; s
 					<h2 id={`${action.action}-title`} className="text-lg font-bold">
 						Electronic signature: {action.action === 'sign-approved' ? 'approved' : 'reviewed'}
 					</h2>
-					<p className="bg-paper border-rule rounded-md border p-3 text-sm" data-testid="signature-statement">
+					<FormErrors errors={errors} />
+					<p
+						className="bg-paper border-rule rounded-md border p-3 text-sm break-words"
+						data-testid="signature-statement"
+					>
 						{statement}
 					</p>
 					{action.needs.effectiveFrom ? (
@@ -140,6 +182,7 @@ function SigningDialog({ action, statement, busy }: { action: AvailableAction; s
 							Your password
 						</label>
 						<input
+							ref={password}
 							id={`${action.action}-password`}
 							type="password"
 							name="password"
@@ -202,7 +245,7 @@ export function SignatureManifest({ signatures, verified }: { signatures: Array<
 						<p className="text-ink-soft mt-1 tabular-nums">
 							{signature.signedAtUtc} · {signature.signedAtLocal}
 						</p>
-						<p className="mt-1">{signature.statement}</p>
+						<p className="mt-1 break-words">{signature.statement}</p>
 						<p className="text-ink-faint mt-1 font-mono text-xs break-all">
 							SHA-256 {signature.contentSha256} · {signature.authentication}
 						</p>

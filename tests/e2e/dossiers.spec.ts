@@ -1,13 +1,12 @@
 import { createHash } from 'node:crypto'
-import { readFile, writeFile } from 'node:fs/promises'
+import { readFile } from 'node:fs/promises'
 import { type Page } from '@playwright/test'
 import { getDocument } from 'pdfjs-dist/legacy/build/pdf.mjs'
 import { expect, signIn, snapshot, test } from './fixtures.ts'
 
 // The demo scenario (scripts/demo-scenario.ts) stores the dossiers of QC-IR-0001 ("Identification of paracetamol by
-// ATR-FTIR") v1 (superseded) and v2 (effective) at seed time; QC-IR-0004 (ethyl acetate) is a version 1 draft. The
-// review journey (review-and-approval.spec.ts) later signs QC-IR-0004, so the draft check here relies on this file
-// running first (files run in name order, one worker).
+// ATR-FTIR") v1 (superseded) and v2 (effective) at seed time; QC-IR-0003 (acetylsalicylic acid) is a version 1 in
+// review, which no journey changes, so these tests do not depend on the order in which files run.
 
 const sha256 = (bytes: Uint8Array) => createHash('sha256').update(bytes).digest('hex')
 
@@ -16,7 +15,10 @@ type Downloaded = { bytes: Buffer; fileName: string; path: string; sha256: strin
 /** Clicks a download link of the Dossier section and keeps the file under the test's output folder. */
 async function download(page: Page, name: 'Download PDF' | 'Download DOCX', keepAs: string): Promise<Downloaded> {
 	const dossier = page.getByRole('region', { name: 'Dossier' })
-	const [file] = await Promise.all([page.waitForEvent('download'), dossier.getByRole('link', { name, exact: true }).click()])
+	const [file] = await Promise.all([
+		page.waitForEvent('download'),
+		dossier.getByRole('link', { name, exact: true }).click(),
+	])
 	expect(await file.failure()).toBeNull()
 	const path = test.info().outputPath(keepAs)
 	await file.saveAs(path)
@@ -26,11 +28,22 @@ async function download(page: Page, name: 'Download PDF' | 'Download DOCX', keep
 
 /** The text of each page, as a reader's software extracts it (pdfjs-dist, legacy build for Node). */
 async function pdfPageTexts(bytes: Uint8Array): Promise<Array<string>> {
-	const pdf = await getDocument({ data: new Uint8Array(bytes), verbosity: 0, isEvalSupported: false, disableFontFace: true }).promise
+	const pdf = await getDocument({
+		data: new Uint8Array(bytes),
+		verbosity: 0,
+		isEvalSupported: false,
+		disableFontFace: true,
+	}).promise
 	const pages: Array<string> = []
 	for (let n = 1; n <= pdf.numPages; n++) {
 		const content = await (await pdf.getPage(n)).getTextContent()
-		pages.push(content.items.map((item) => ('str' in item ? item.str : '')).join(' ').replace(/\s+/g, ' ').trim())
+		pages.push(
+			content.items
+				.map((item) => ('str' in item ? item.str : ''))
+				.join(' ')
+				.replace(/\s+/g, ' ')
+				.trim(),
+		)
 	}
 	await pdf.destroy()
 	return pages
@@ -58,12 +71,16 @@ function matchDetail(page: Page, term: string) {
 	return page.getByTestId('verify-result').locator('dt', { hasText: term }).locator('+ dd')
 }
 
-test('[DOS-E2E-001] an approver downloads the effective paracetamol dossier as PDF and DOCX, byte-identical every time, and "Verify a copy" recognises each', async ({ page }) => {
+test('[DOS-E2E-001] an approver downloads the effective paracetamol dossier as PDF and DOCX, byte-identical every time, and "Verify a copy" recognises each', async ({
+	page,
+}) => {
 	test.setTimeout(120_000)
 	await signIn(page, 'approver@bandproof.test')
 	await openSpecification(page, 'QC-IR-0001')
 	await expect(page).toHaveTitle('QC-IR-0001 v2 (Effective) · Bandproof')
-	await expect(page.getByRole('region', { name: 'Dossier' })).toContainText('rendered once and stored, so every download is the same file')
+	await expect(page.getByRole('region', { name: 'Dossier' })).toContainText(
+		'rendered once and stored, so every download is the same file',
+	)
 	await snapshot(page, 'dossier-effective-version')
 
 	// Stored and repeatable (issue 6 item 3; PRODUCT.md §6): two downloads of each format are the same bytes.
@@ -116,7 +133,10 @@ test('[DOS-E2E-001] an approver downloads the effective paracetamol dossier as P
 
 	// Typing the hash works too: upper case with spaces every 8 digits, as people copy it from paper.
 	await page.goto('/verify')
-	const spaced = docx.sha256.toUpperCase().replace(/(.{8})/g, '$1 ').trim()
+	const spaced = docx.sha256
+		.toUpperCase()
+		.replace(/(.{8})/g, '$1 ')
+		.trim()
 	await page.getByLabel('Its SHA-256').fill(spaced)
 	await page.getByRole('button', { name: 'Check the copy' }).click()
 	await expect(page.getByTestId('verify-result')).toContainText('Matches')
@@ -129,16 +149,20 @@ test('[DOS-E2E-001] an approver downloads the effective paracetamol dossier as P
 	await expect(page.getByRole('alert')).toContainText('A SHA-256 is 64 hexadecimal digits')
 })
 
-test('[DOS-E2E-002] a draft dossier carries DRAFT on every page, is not recognised as a controlled copy, and the preview shows the PDF in the page', async ({ page }) => {
+test('[DOS-E2E-002] a draft dossier carries DRAFT on every page, is not recognised as a controlled copy, and the preview shows the PDF in the page', async ({
+	page,
+}) => {
 	test.setTimeout(120_000)
 	await signIn(page, 'approver@bandproof.test')
-	await openSpecification(page, 'QC-IR-0004')
-	await expect(page, 'QC-IR-0004 must still be the demo draft (this file runs before the review journey)').toHaveTitle('QC-IR-0004 v1 (Draft) · Bandproof')
-	await expect(page.getByRole('region', { name: 'Dossier' })).toContainText('every page carries a DRAFT mark. It is not a controlled copy.')
+	await openSpecification(page, 'QC-IR-0003')
+	await expect(page).toHaveTitle('QC-IR-0003 v1 (In review) · Bandproof')
+	await expect(page.getByRole('region', { name: 'Dossier' })).toContainText(
+		'every page carries a DRAFT mark. It is not a controlled copy.',
+	)
 
 	// PRODUCT.md §6 and issue 6 item 2: a version not yet effective carries a DRAFT mark on every page, with "Page X of Y".
 	const draft = await download(page, 'Download PDF', 'draft.pdf')
-	expect(draft.fileName).toMatch(/^QC-IR-0004.*\.pdf$/)
+	expect(draft.fileName).toMatch(/^QC-IR-0003.*\.pdf$/)
 	const pages = await pdfPageTexts(draft.bytes)
 	expect(pages.length).toBeGreaterThan(0)
 	pages.forEach((text, index) => expect(text, `page ${index + 1}`).toMatch(/\bDRAFT\b/))
@@ -151,8 +175,8 @@ test('[DOS-E2E-002] a draft dossier carries DRAFT on every page, is not recognis
 	await expect(result).toContainText('it is a draft rendered on demand')
 
 	// The preview: the PDF inside the page, served inline.
-	await openSpecification(page, 'QC-IR-0004')
-	await expect(page).toHaveTitle('QC-IR-0004 v1 (Draft) · Bandproof')
+	await openSpecification(page, 'QC-IR-0003')
+	await expect(page).toHaveTitle('QC-IR-0003 v1 (In review) · Bandproof')
 	const dossier = page.getByRole('region', { name: 'Dossier' })
 	await dossier.getByRole('button', { name: 'Preview' }).click()
 	const frame = dossier.locator('iframe[title="Dossier preview"]')

@@ -47,7 +47,7 @@ async function openFromQueue(page: Page, version: number, task: 'Review' | 'Appr
 	const count = await items.count()
 	expect(count).toBeGreaterThan(0)
 	await expect(nav.getByTestId('queue-count')).toHaveText(String(count))
-	await expect(nav.getByLabel(`${count} waiting`, { exact: true })).toBeVisible()
+	await expect(nav.getByRole('link', { name: new RegExp(`^My queue\\s*, ${count} waiting$`) })).toBeVisible()
 	const item = items.filter({ has: page.getByRole('link', { name: `${DOC} v${version}`, exact: true }) })
 	await expect(item).toContainText(task)
 	await item.getByRole('link', { name: `${DOC} v${version}`, exact: true }).click()
@@ -154,9 +154,9 @@ test('[WF-E2E-001] a draft goes through redline, rejection, two signatures and a
 	)
 	await snapshot(page, 'review-signing-dialog')
 	await sign(page, 'reviewed', 'not-my-password')
-	// NOTE: the refusal is rendered in "Your next step" while the modal signing dialog stays open over it, so the signer
-	// does not see it until they cancel the dialog (reported; the check below passes because the text is in the page).
-	await expect(page.getByText('The password is not right; nothing was signed.')).toBeVisible()
+	// The refusal shows inside the signing dialog, which stays open with the password cleared (21 CFR 11.200(a)).
+	await expect(reviewDialog.getByRole('alert')).toContainText('The password is not right; nothing was signed.')
+	await expect(reviewDialog.getByLabel('Your password')).toHaveValue('')
 	await snapshot(page, 'review-wrong-password')
 	await page.goto(page.url())
 	await expectState(page, 1, 'In review')

@@ -5,7 +5,10 @@ const NAVIGATION_BY_ROLE = {
 		sees: ['Materials', 'Spectra', 'Specifications', 'My queue'],
 		hidden: ['Users and roles', 'Inspection'],
 	},
-	'reviewer@bandproof.test': { sees: ['Materials', 'Specifications', 'My queue', 'Verify a copy'], hidden: ['Users and roles', 'Inspection'] },
+	'reviewer@bandproof.test': {
+		sees: ['Materials', 'Specifications', 'My queue', 'Verify a copy'],
+		hidden: ['Users and roles', 'Inspection'],
+	},
 	'approver@bandproof.test': { sees: ['Materials', 'My queue', 'Audit trail'], hidden: ['Users and roles'] },
 	'inspector@bandproof.test': {
 		sees: ['Inspection', 'Audit trail'],

@@ -98,13 +98,16 @@ export default function SignedInLayout({ loaderData }: Route.ComponentProps) {
 										>
 											{item.label}
 											{item.to === '/queue' && queueCount > 0 ? (
-												<span
-													className="bg-accent text-paper ml-2 rounded-full px-1.5 py-0.5 text-xs font-semibold"
-													aria-label={`${queueCount} waiting`}
-													data-testid="queue-count"
-												>
-													{queueCount}
-												</span>
+												<>
+													<span className="sr-only">, {queueCount} waiting</span>
+													<span
+														aria-hidden="true"
+														className="bg-accent text-paper ml-2 rounded-full px-1.5 py-0.5 text-xs font-semibold"
+														data-testid="queue-count"
+													>
+														{queueCount}
+													</span>
+												</>
 											) : null}
 										</NavLink>
 									</li>
