@@ -1,9 +1,9 @@
-import { Form, Link } from 'react-router'
+import { Link } from 'react-router'
 import type { Route } from './+types/index'
 import { authorize } from '#app/.server/context.ts'
 import { db } from '#app/.server/db/client.ts'
 import { listMaterials, MaterialListQuerySchema } from '#app/.server/queries/materials.ts'
-import { inputClass } from '#app/components/forms.tsx'
+import { FilterBar, SelectFilter, TextFilter } from '#app/components/list-filters.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { buttonVariants } from '#app/components/ui/button.tsx'
 import { EmptyState } from '#app/components/ui/empty-state.tsx'
@@ -34,43 +34,27 @@ export default function MaterialsList({ loaderData }: Route.ComponentProps) {
 					) : null
 				}
 			/>
-			<Form method="get" role="search" className="mb-4 flex flex-wrap items-end gap-3">
-				<div>
-					<label htmlFor="material-search" className="mb-1 block text-sm font-medium">
-						Search
-					</label>
-					<input
-						id="material-search"
-						name="q"
-						defaultValue={query.q ?? ''}
-						placeholder="Code, name, synonym or CAS"
-						className={`${inputClass} w-72`}
-					/>
-				</div>
-				<div>
-					<label htmlFor="material-grade" className="mb-1 block text-sm font-medium">
-						Grade
-					</label>
-					<select id="material-grade" name="grade" defaultValue={query.grade ?? ''} className={`${inputClass} w-48`}>
-						<option value="">Any grade</option>
-						{grades.map((grade) => (
-							<option key={grade} value={grade}>
-								{grade}
-							</option>
-						))}
-					</select>
-				</div>
+			<FilterBar clearTo="/materials" filtered={filtered}>
+				<TextFilter
+					id="material-search"
+					name="q"
+					label="Search"
+					defaultValue={query.q}
+					placeholder="Code, name, synonym or CAS"
+					className="w-72"
+				/>
+				<SelectFilter
+					id="material-grade"
+					name="grade"
+					label="Grade"
+					anyLabel="Any grade"
+					defaultValue={query.grade}
+					options={grades.map((grade) => ({ value: grade, label: grade }))}
+					className="w-48"
+				/>
 				<input type="hidden" name="sort" value={query.sort} />
 				<input type="hidden" name="dir" value={query.dir} />
-				<button type="submit" className={buttonVariants({ variant: 'secondary' })}>
-					Apply
-				</button>
-				{filtered ? (
-					<Link to="/materials" className={buttonVariants({ variant: 'quiet' })}>
-						Clear filters
-					</Link>
-				) : null}
-			</Form>
+			</FilterBar>
 			{rows.length === 0 ? (
 				<EmptyState title={filtered ? 'No material matches these filters' : 'No materials yet'}>
 					{filtered

@@ -1,9 +1,10 @@
-import { Form, Link } from 'react-router'
+import { Link } from 'react-router'
 import type { Route } from './+types/index'
 import { authorize } from '#app/.server/context.ts'
 import { db } from '#app/.server/db/client.ts'
 import { listMaterialChoices, listSpectra, SpectrumListQuerySchema } from '#app/.server/queries/spectra.ts'
-import { inputClass } from '#app/components/forms.tsx'
+import { FilterBar, materialOptions, SelectFilter, TextFilter } from '#app/components/list-filters.tsx'
+import { ListTable } from '#app/components/ui/list-table.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { buttonVariants } from '#app/components/ui/button.tsx'
 import { EmptyState } from '#app/components/ui/empty-state.tsx'
@@ -36,64 +37,31 @@ export default function SpectraLibrary({ loaderData }: Route.ComponentProps) {
 					) : null
 				}
 			/>
-			<Form method="get" role="search" className="mb-4 flex flex-wrap items-end gap-3">
-				<div>
-					<label htmlFor="spectra-q" className="mb-1 block text-sm font-medium">
-						Search
-					</label>
-					<input
-						id="spectra-q"
-						name="q"
-						defaultValue={query.q ?? ''}
-						placeholder="File, title, lot or material"
-						className={`${inputClass} w-64`}
-					/>
-				</div>
-				<div>
-					<label htmlFor="spectra-purpose" className="mb-1 block text-sm font-medium">
-						Purpose
-					</label>
-					<select
-						id="spectra-purpose"
-						name="purpose"
-						defaultValue={query.purpose ?? ''}
-						className={`${inputClass} w-56`}
-					>
-						<option value="">Any purpose</option>
-						{Object.entries(SPECTRUM_PURPOSE_LABELS).map(([value, label]) => (
-							<option key={value} value={value}>
-								{label}
-							</option>
-						))}
-					</select>
-				</div>
-				<div>
-					<label htmlFor="spectra-material" className="mb-1 block text-sm font-medium">
-						Material
-					</label>
-					<select
-						id="spectra-material"
-						name="materialId"
-						defaultValue={query.materialId ?? ''}
-						className={`${inputClass} w-56`}
-					>
-						<option value="">Any material</option>
-						{materials.map((material) => (
-							<option key={material.id} value={material.id}>
-								{material.code} · {material.name}
-							</option>
-						))}
-					</select>
-				</div>
-				<button type="submit" className={buttonVariants({ variant: 'secondary' })}>
-					Apply
-				</button>
-				{filtered ? (
-					<Link to="/spectra" className={buttonVariants({ variant: 'quiet' })}>
-						Clear filters
-					</Link>
-				) : null}
-			</Form>
+			<FilterBar clearTo="/spectra" filtered={filtered}>
+				<TextFilter
+					id="spectra-q"
+					name="q"
+					label="Search"
+					defaultValue={query.q}
+					placeholder="File, title, lot or material"
+				/>
+				<SelectFilter
+					id="spectra-purpose"
+					name="purpose"
+					label="Purpose"
+					anyLabel="Any purpose"
+					defaultValue={query.purpose}
+					options={Object.entries(SPECTRUM_PURPOSE_LABELS).map(([value, label]) => ({ value, label }))}
+				/>
+				<SelectFilter
+					id="spectra-material"
+					name="materialId"
+					label="Material"
+					anyLabel="Any material"
+					defaultValue={query.materialId}
+					options={materialOptions(materials)}
+				/>
+			</FilterBar>
 			{rows.length === 0 ? (
 				<EmptyState title={filtered ? 'No spectrum matches these filters' : 'The library is empty'}>
 					{filtered
@@ -104,65 +72,39 @@ export default function SpectraLibrary({ loaderData }: Route.ComponentProps) {
 				</EmptyState>
 			) : (
 				<>
-					<div className="bg-sheet border-rule overflow-x-auto rounded-lg border">
-						<table className="w-full text-sm">
-							<thead className="border-rule bg-paper border-b">
-								<tr>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">
-										File
-									</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">
-										Material
-									</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">
-										Purpose
-									</th>
-									<th scope="col" className="px-3 py-2 text-right font-semibold">
-										Points
-									</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">
-										Range (cm⁻¹)
-									</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">
-										Uploaded
-									</th>
-								</tr>
-							</thead>
-							<tbody>
-								{rows.map((row) => (
-									<tr key={row.id} className="border-rule border-b last:border-0">
-										<td className="px-3 py-2">
-											<Link
-												to={`/spectra/${row.id}`}
-												className="text-accent font-medium break-all underline-offset-4 hover:underline"
-											>
-												{row.fileName}
-											</Link>
-											{row.title && row.title !== row.fileName ? (
-												<span className="text-ink-faint block text-xs">{row.title}</span>
-											) : null}
-										</td>
-										<td className="px-3 py-2">
-											{row.materialCode ? `${row.materialCode} · ${row.materialName}` : '—'}
-										</td>
-										<td className="px-3 py-2">
-											<span className="capitalize">{row.purpose.replace('-', ' ')}</span>
-											{row.locked ? (
-												<span className="ml-2">
-													<StatusBadge tone="neutral">Locked</StatusBadge>
-												</span>
-											) : null}
-										</td>
-										<td className="px-3 py-2 text-right tabular-nums">{row.points.toLocaleString('en')}</td>
-										<td className="px-3 py-2 tabular-nums">
-											{Math.round(row.maxWavenumber)}–{Math.round(row.minWavenumber)}
-										</td>
-										<td className="text-ink-soft px-3 py-2 tabular-nums">{row.uploadedAt.slice(0, 10)}</td>
-									</tr>
-								))}
-							</tbody>
-						</table>
-					</div>
+					<ListTable
+						headers={['File', 'Material', 'Purpose', { label: 'Points', align: 'right' }, 'Range (cm⁻¹)', 'Uploaded']}
+					>
+						{rows.map((row) => (
+							<tr key={row.id} className="border-rule border-b last:border-0">
+								<td className="px-3 py-2">
+									<Link
+										to={`/spectra/${row.id}`}
+										className="text-accent font-medium break-all underline-offset-4 hover:underline"
+									>
+										{row.fileName}
+									</Link>
+									{row.title && row.title !== row.fileName ? (
+										<span className="text-ink-faint block text-xs">{row.title}</span>
+									) : null}
+								</td>
+								<td className="px-3 py-2">{row.materialCode ? `${row.materialCode} · ${row.materialName}` : '—'}</td>
+								<td className="px-3 py-2">
+									<span className="capitalize">{row.purpose.replace('-', ' ')}</span>
+									{row.locked ? (
+										<span className="ml-2">
+											<StatusBadge tone="neutral">Locked</StatusBadge>
+										</span>
+									) : null}
+								</td>
+								<td className="px-3 py-2 text-right tabular-nums">{row.points.toLocaleString('en')}</td>
+								<td className="px-3 py-2 tabular-nums">
+									{Math.round(row.maxWavenumber)}–{Math.round(row.minWavenumber)}
+								</td>
+								<td className="text-ink-soft px-3 py-2 tabular-nums">{row.uploadedAt.slice(0, 10)}</td>
+							</tr>
+						))}
+					</ListTable>
 					<Pager page={query.page} pageCount={pageCount} total={total} noun="spectrum" plural="spectra" />
 				</>
 			)}
