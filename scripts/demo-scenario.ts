@@ -6,6 +6,7 @@ import { createMaterial } from '#app/.server/services/materials.ts'
 import { createUser } from '#app/.server/services/users.ts'
 import { specVersions } from '#app/.server/db/schema/specifications.ts'
 import { getDossier } from '#app/.server/services/dossiers.ts'
+import { createGrant } from '#app/.server/services/grants.ts'
 import { addRedline } from '#app/.server/services/redlines.ts'
 import { applyDueEffectiveDates, takeWorkflowStep } from '#app/.server/services/spec-workflow.ts'
 import {
@@ -392,6 +393,44 @@ async function seedLibraryAndSpecifications(
 			if (!file) throw new Error(`demo dossier of ${versionId} was not rendered`)
 		}
 	}
+
+	// The demo inspector holds a current grant over two specifications; an earlier one has ended.
+	const inspectorId = (
+		await db.select({ id: users.id }).from(users).where(eq(users.email, 'inspector@bandproof.test'))
+	)[0]!.id
+	const admin = (
+		await db.select({ id: users.id, name: users.name }).from(users).where(eq(users.email, 'admin@bandproof.test'))
+	)[0]!
+	const adminActor: Actor = { id: admin.id, name: admin.name, email: 'admin@bandproof.test', roles: ['admin'] }
+	const isoDay = (date: Date) => date.toISOString().slice(0, 10)
+	must(
+		await createGrant(db, {
+			actor: adminActor,
+			values: {
+				inspectorId,
+				purpose: 'Customer audit by Halden Pharma, spring 2026',
+				scope: 'all',
+				specificationIds: [],
+				startsAt: isoDay(daysBefore(now, 200)),
+				endsAt: isoDay(daysBefore(now, 195)),
+			},
+			now: daysBefore(now, 201),
+		}),
+	)
+	must(
+		await createGrant(db, {
+			actor: adminActor,
+			values: {
+				inspectorId,
+				purpose: 'Regulatory GMP inspection, December 2026',
+				scope: 'chosen',
+				specificationIds: [paracetamol.specificationId, ipa.specificationId],
+				startsAt: isoDay(daysBefore(now, 1)),
+				endsAt: isoDay(new Date(now.getTime() + 30 * 86_400_000)),
+			},
+			now: daysBefore(now, 2),
+		}),
+	)
 
 	// 4. Ethyl acetate: a draft in progress.
 	const ethylAcetate = must(

@@ -39,6 +39,7 @@ const grants = {
 	'audit:read': ['admin', 'inspector', 'approver'],
 	'inspection:read': ['inspector'],
 	'user:manage': ['admin'],
+	'grant:manage': ['admin'],
 	'mailbox:read': ['admin'],
 } as const satisfies Record<string, ReadonlyArray<Role>>
 

@@ -3,6 +3,7 @@ import postgres from 'postgres'
 import * as audit from './schema/audit.ts'
 import * as auth from './schema/auth.ts'
 import * as dossiers from './schema/dossiers.ts'
+import * as grants from './schema/grants.ts'
 import * as materials from './schema/materials.ts'
 import * as outbox from './schema/outbox.ts'
 import * as roles from './schema/roles.ts'
@@ -18,6 +19,7 @@ export const schema = {
 	...specifications,
 	...outbox,
 	...dossiers,
+	...grants,
 }
 
 function connect(url: string) {

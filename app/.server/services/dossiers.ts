@@ -165,7 +165,8 @@ export async function buildDossierData(
 		})
 	}
 	const subject = { documentNumber: specification.documentNumber, versionNumber: version.versionNumber }
-	const controlled = version.state === 'effective'
+	// A copy issued to an inspector is for information: it carries the "issued to" line and is not a controlled copy.
+	const controlled = version.state === 'effective' && !input.inspectionLine
 	return {
 		organisation: {
 			name: process.env.BANDPROOF_ORGANISATION ?? 'Calder Vale Pharmaceuticals',
@@ -272,6 +273,8 @@ export async function getDossier(
 		now: Date
 		ipAddress?: string | null
 		purpose: 'download' | 'preview' | 'seed'
+		/** For an inspector: the "issued to … for inspection" line. Such copies are rendered for them, not stored. */
+		inspectionLine?: string
 	},
 ): Promise<DossierFile | null> {
 	const [version] = await db
@@ -284,9 +287,11 @@ export async function getDossier(
 		.innerJoin(specifications, eq(specifications.id, specVersions.specificationId))
 		.where(eq(specVersions.id, input.versionId))
 	if (!version) return null
-	const fileName = `${version.documentNumber}-v${version.versionNumber}-${version.state}.${input.format}`
+	const issued = Boolean(input.inspectionLine)
+	const fileName = `${version.documentNumber}-v${version.versionNumber}-${version.state}${issued ? '-inspection-copy' : ''}.${input.format}`
+	const stores = STORED_STATES.has(version.state) && !issued
 	let file: DossierFile | null = null
-	if (STORED_STATES.has(version.state)) {
+	if (stores) {
 		const [stored] = await db
 			.select()
 			.from(dossiers)
@@ -300,11 +305,15 @@ export async function getDossier(
 		if (stored) file = { bytes: stored.bytes, sha256: stored.sha256, fileName, stored: true }
 	}
 	if (!file) {
-		const data = await buildDossierData(db, { versionId: input.versionId, renderedAt: input.now })
+		const data = await buildDossierData(db, {
+			versionId: input.versionId,
+			renderedAt: input.now,
+			inspectionLine: input.inspectionLine ?? null,
+		})
 		if (!data) return null
 		const rendered = await renderDossierOffThread(data, { format: input.format, templateId: 'dossier' })
 		const template = rendered.template
-		if (STORED_STATES.has(version.state)) {
+		if (stores) {
 			const [inserted] = await db
 				.insert(dossiers)
 				.values({
@@ -363,7 +372,12 @@ export async function getDossier(
 			action: input.purpose === 'preview' ? 'dossier.previewed' : 'dossier.downloaded',
 			entityType: 'spec-version',
 			entityId: input.versionId,
-			after: { format: input.format, sha256: file.sha256, stored: file.stored },
+			after: {
+				format: input.format,
+				sha256: file.sha256,
+				stored: file.stored,
+				...(issued ? { issuedFor: input.inspectionLine } : {}),
+			},
 			ipAddress: input.ipAddress ?? null,
 			occurredAt: input.now,
 		})

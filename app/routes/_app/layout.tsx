@@ -46,6 +46,7 @@ const NAVIGATION: Array<NavGroup> = [
 		heading: 'Administration',
 		items: [
 			{ to: '/admin/users', label: 'Users and roles', permission: 'user:manage' },
+			{ to: '/admin/grants', label: 'Access grants', permission: 'grant:manage' },
 			{ to: '/admin/mailbox', label: 'Outgoing mail', permission: 'mailbox:read' },
 		],
 	},

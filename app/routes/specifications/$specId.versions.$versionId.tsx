@@ -28,9 +28,10 @@ import {
 	startNextVersion,
 } from '#app/.server/services/specifications.ts'
 import { redirectWithToast } from '#app/.server/toast.ts'
-import { BandTableEditor, BandTableView } from '#app/components/band-table-editor.tsx'
+import { BandTableEditor } from '#app/components/band-table-editor.tsx'
 import { CautionNote } from '#app/components/caution-note.tsx'
 import { DossierPanel } from '#app/components/dossier-panel.tsx'
+import { ContentView } from '#app/components/version-content-view.tsx'
 import { EvidenceList } from '#app/components/evidence-list.tsx'
 import { Field, FormErrors, inputClass, TextareaField } from '#app/components/forms.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
@@ -42,7 +43,7 @@ import { can } from '#shared/authz/permissions.ts'
 import type { BandRowProblem } from '#shared/specs/band-table.ts'
 import { VERSION_STATE_LABELS } from '#shared/specs/state-labels.ts'
 import { TECHNIQUES, type BandRow } from '#shared/specs/version-content.ts'
-import { contentFromForm, formatRegions, formFromContent, VersionFormSchema } from '#shared/specs/version-form.ts'
+import { contentFromForm, formFromContent, VersionFormSchema } from '#shared/specs/version-form.ts'
 
 const EvidenceActionSchema = z.discriminatedUnion('intent', [
 	z.object({
@@ -665,60 +666,6 @@ function bandErrors(allErrors: Record<string, Array<string>>): Array<string> | u
 			return errors.map((error) => (row ? `Band ${Number(row[1]) + 1}${row[2] ? `, ${row[2]}` : ''}: ${error}` : error))
 		})
 	return messages.length ? messages : undefined
-}
-
-function ContentView({
-	content,
-	referenceName,
-	changeReason,
-}: {
-	content: WorkspaceData['content']
-	referenceName: string | null
-	changeReason: string | null
-}) {
-	const rows: Array<[string, string]> = [
-		['Reason for this version', changeReason ?? 'First version'],
-		['Scope', content.scope || '—'],
-		['Technique', content.method.technique],
-		['Range', `${content.method.rangeTo}–${content.method.rangeFrom} cm⁻¹`],
-		['Resolution and scans', `${content.method.resolution} cm⁻¹, ${content.method.scans} scans`],
-		['Sample preparation', content.method.samplePreparation || '—'],
-		['Reference spectrum', referenceName ?? 'None'],
-		['Minimum correlation', String(content.criteria.minCorrelation)],
-		[
-			'Minimum derivative correlation',
-			content.criteria.minDerivativeCorrelation === null
-				? 'Not used'
-				: String(content.criteria.minDerivativeCorrelation),
-		],
-		[
-			'Default band tolerance',
-			content.criteria.defaultBandTolerance === null
-				? '0.5 % of each position'
-				: `± ${content.criteria.defaultBandTolerance} cm⁻¹`,
-		],
-		['Exclusion regions', formatRegions(content.criteria.exclusionRegions) || 'None'],
-		['Justification of the thresholds', content.criteria.thresholdJustification || '—'],
-		['Notes', content.notes || '—'],
-	]
-	return (
-		<div className="space-y-6">
-			<section className="bg-sheet border-rule rounded-lg border p-5">
-				<h2 className="mb-3 text-lg font-bold">Content</h2>
-				<dl className="grid grid-cols-[14rem_1fr] gap-x-4 gap-y-2 text-sm">
-					{rows.map(([label, value]) => (
-						<div key={label} className="contents">
-							<dt className="text-ink-faint">{label}</dt>
-							<dd className="whitespace-pre-line">{value}</dd>
-						</div>
-					))}
-				</dl>
-			</section>
-			<section className="bg-sheet border-rule rounded-lg border p-5">
-				<BandTableView rows={content.bands} />
-			</section>
-		</div>
-	)
 }
 
 function EvidenceForms({
