@@ -1,9 +1,15 @@
 import { Links, Meta, Outlet, Scripts, ScrollRestoration, data } from 'react-router'
 import type { Route } from './+types/root'
+import { requestGuardMiddleware, securityHeadersMiddleware } from '#app/.server/security/middleware.ts'
 import { takeToast } from '#app/.server/toast.ts'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { ToastNotice } from '#app/components/toast-notice.tsx'
+import { useNonce } from '#app/utils/nonce.ts'
 import './app.css'
+
+// Every request, pages, data requests and resource routes alike: security headers on the way out (outermost, so
+// refusals and error pages get them too), then the cross-site and body-size guards.
+export const middleware: Array<Route.MiddlewareFunction> = [securityHeadersMiddleware, requestGuardMiddleware]
 
 export async function loader({ request }: Route.LoaderArgs) {
 	const { toast, headers } = await takeToast(request)
@@ -11,6 +17,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export function Layout({ children }: { children: React.ReactNode }) {
+	const nonce = useNonce()
 	return (
 		<html lang="en">
 			<head>
@@ -22,8 +29,8 @@ export function Layout({ children }: { children: React.ReactNode }) {
 			</head>
 			<body className="min-h-screen">
 				{children}
-				<ScrollRestoration />
-				<Scripts />
+				<ScrollRestoration nonce={nonce} />
+				<Scripts nonce={nonce} />
 			</body>
 		</html>
 	)

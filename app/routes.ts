@@ -7,6 +7,21 @@ export default [
 	route('sign-out', 'routes/_public/sign-out.tsx'),
 	route('api/auth/*', 'routes/api/auth.$.ts'),
 	route('healthz', 'routes/api/healthz.ts'),
+	// REST API v1: resource routes authenticated by API keys (app/.server/api.ts), not by the session.
+	...prefix('api/v1', [
+		route('openapi.json', 'routes/api/v1/openapi.ts'),
+		route('materials', 'routes/api/v1/materials.ts'),
+		route('specifications', 'routes/api/v1/specifications.ts'),
+		route('specifications/:specificationId', 'routes/api/v1/specifications.$specificationId.ts'),
+		route('specifications/:specificationId/compare', 'routes/api/v1/specifications.$specificationId.compare.ts'),
+		route('versions/:versionId', 'routes/api/v1/versions.$versionId.ts'),
+		route('versions/:versionId/bands', 'routes/api/v1/versions.$versionId.bands.ts'),
+		route('versions/:versionId/dossier.pdf', 'routes/api/v1/versions.$versionId.dossier.ts'),
+		route('spectra', 'routes/api/v1/spectra.ts'),
+	]),
+	// Outside the _app layout on purpose: its middleware refuses every POST from read-only roles, and inspectors
+	// may manage their own read-only keys. The page resolves the session itself (see its middleware).
+	route('settings/api-keys', 'routes/settings/api-keys.tsx'),
 
 	layout('routes/_app/layout.tsx', [
 		index('routes/_app/overview.tsx'),
@@ -34,6 +49,7 @@ export default [
 		]),
 		route('queue', 'routes/queue.tsx'),
 		route('verify', 'routes/verify.tsx'),
+		route('api-docs', 'routes/api-docs.tsx'),
 		...prefix('inspection', [
 			index('routes/inspection/index.tsx'),
 			route(':versionId', 'routes/inspection/$versionId.tsx'),

@@ -6,6 +6,8 @@ import { and, eq, sql } from 'drizzle-orm'
 import { db } from '#app/.server/db/client.ts'
 import { accounts, sessions, users, verifications } from '#app/.server/db/schema/auth.ts'
 import { env } from '#app/.server/env.ts'
+import { loopbackTwins } from '#app/.server/security/origin.ts'
+import { signInSucceeded, takeSignInAttempt } from '#app/.server/security/sign-in-limits.ts'
 import { recordAudit } from '#app/.server/services/audit.ts'
 import { decideSignInGate, lockUntilAfterFailure } from '#shared/authz/sign-in-gate.ts'
 import { DomainError, err, ok, type Result } from '#shared/errors.ts'
@@ -21,7 +23,7 @@ function createAuth() {
 	return betterAuth({
 		secret,
 		baseURL: settings.BETTER_AUTH_URL,
-		trustedOrigins: loopbackTwins(settings.BETTER_AUTH_URL),
+		trustedOrigins: settings.BETTER_AUTH_URL ? loopbackTwins(settings.BETTER_AUTH_URL) : [],
 		database: drizzleAdapter(db, {
 			provider: 'pg',
 			schema: { user: users, session: sessions, account: accounts, verification: verifications },
@@ -45,8 +47,18 @@ function createAuth() {
 			before: createAuthMiddleware(async (ctx) => {
 				if (ctx.path !== '/sign-in/email') return
 				const email = String((ctx.body as { email?: unknown } | undefined)?.email ?? '').toLowerCase()
-				const [user] = await db.select().from(users).where(eq(users.email, email))
 				const now = new Date()
+				// Rate limits per client address and per e-mail, before anything touches the database (sign-in-limits.ts).
+				const attempt = takeSignInAttempt(email, ctx.headers, now.getTime())
+				if (!attempt.allowed) {
+					const retryAfter = String(attempt.retryAfterSeconds)
+					throw new APIError(
+						'TOO_MANY_REQUESTS',
+						{ message: attempt.message, code: 'RATE_LIMITED', retryAfterSeconds: attempt.retryAfterSeconds },
+						{ 'Retry-After': retryAfter },
+					)
+				}
+				const [user] = await db.select().from(users).where(eq(users.email, email))
 				if (user?.lockedUntil && user.lockedUntil <= now) {
 					// A lock that has run out starts the count afresh.
 					await db.update(users).set({ failedSignIns: 0, lockedUntil: null }).where(eq(users.id, user.id))
@@ -70,6 +82,7 @@ function createAuth() {
 				const ipAddress = ctx.headers?.get('x-forwarded-for') ?? null
 				const newSession = ctx.context.newSession
 				if (newSession) {
+					signInSucceeded(email, ctx.headers)
 					await db.update(users).set({ failedSignIns: 0, lockedUntil: null }).where(eq(users.id, newSession.user.id))
 					await recordAudit(db, {
 						actor: { id: newSession.user.id, label: newSession.user.email },
@@ -81,8 +94,9 @@ function createAuth() {
 					return
 				}
 				const returned = ctx.context.returned
-				const refusedByGate = returned instanceof APIError && returned.body?.code === 'ACCOUNT_BLOCKED'
-				if (refusedByGate) return
+				const refusedBeforeTrying =
+					returned instanceof APIError && ['ACCOUNT_BLOCKED', 'RATE_LIMITED'].includes(returned.body?.code ?? '')
+				if (refusedBeforeTrying) return
 				await recordFailedSignIn(email, ipAddress)
 			}),
 		},
@@ -163,16 +177,6 @@ async function recordFailedSignIn(
 			})
 		}
 	})
-}
-
-/** The public origin, plus its localhost/127.0.0.1 twin: browsers treat the two as different origins. */
-function loopbackTwins(publicUrl: string | undefined): Array<string> {
-	if (!publicUrl) return []
-	const url = new URL(publicUrl)
-	const origins = [url.origin]
-	const twin = url.hostname === 'localhost' ? '127.0.0.1' : url.hostname === '127.0.0.1' ? 'localhost' : null
-	if (twin) origins.push(`${url.protocol}//${twin}${url.port ? `:${url.port}` : ''}`)
-	return origins
 }
 
 type Auth = ReturnType<typeof createAuth>

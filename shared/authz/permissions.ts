@@ -41,6 +41,8 @@ const grants = {
 	'user:manage': ['admin'],
 	'grant:manage': ['admin'],
 	'mailbox:read': ['admin'],
+	// Everyone signed in may hold personal API keys; an inspector's keys are read-only (see apiKeyScopesFor).
+	'api-key:manage': ['author', 'reviewer', 'approver', 'inspector', 'admin'],
 } as const satisfies Record<string, ReadonlyArray<Role>>
 
 export type Permission = keyof typeof grants
@@ -57,4 +59,12 @@ export function can(actor: { roles: ReadonlyArray<Role> } | null | undefined, pe
 /** Roles that may only read: their non-GET requests are refused before any action runs. */
 export function isReadOnly(actor: { roles: ReadonlyArray<Role> }): boolean {
 	return actor.roles.length > 0 && actor.roles.every((role) => role === 'inspector')
+}
+
+export const API_KEY_SCOPES = ['read', 'write'] as const
+export type ApiKeyScope = (typeof API_KEY_SCOPES)[number]
+
+/** The scopes an actor may give their own API keys: read-only roles get read keys only. */
+export function apiKeyScopesFor(actor: { roles: ReadonlyArray<Role> }): ReadonlyArray<ApiKeyScope> {
+	return isReadOnly(actor) ? ['read'] : API_KEY_SCOPES
 }

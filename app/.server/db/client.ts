@@ -1,5 +1,6 @@
 import { drizzle } from 'drizzle-orm/postgres-js'
 import postgres from 'postgres'
+import * as apiKeysSchema from './schema/api-keys.ts'
 import * as audit from './schema/audit.ts'
 import * as auth from './schema/auth.ts'
 import * as dossiers from './schema/dossiers.ts'
@@ -20,6 +21,7 @@ export const schema = {
 	...outbox,
 	...dossiers,
 	...grants,
+	...apiKeysSchema,
 }
 
 function connect(url: string) {

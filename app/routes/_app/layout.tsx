@@ -43,6 +43,13 @@ const NAVIGATION: Array<NavGroup> = [
 		],
 	},
 	{
+		heading: 'Integration',
+		items: [
+			{ to: '/settings/api-keys', label: 'API keys', permission: 'api-key:manage' },
+			{ to: '/api-docs', label: 'API reference', permission: 'workspace:enter' },
+		],
+	},
+	{
 		heading: 'Administration',
 		items: [
 			{ to: '/admin/users', label: 'Users and roles', permission: 'user:manage' },

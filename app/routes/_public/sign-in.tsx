@@ -11,9 +11,9 @@ import { Button } from '#app/components/ui/button.tsx'
 import { safeRedirectPath } from '#app/utils/redirect.ts'
 
 const SignInSchema = z.object({
-	email: z.email({ message: 'Enter the e-mail address of your account' }).trim().toLowerCase(),
+	email: z.email({ message: 'Enter the e-mail address of your account' }).max(254).trim().toLowerCase(),
 	password: z.string({ message: 'Enter your password' }).min(1, 'Enter your password').max(200),
-	redirectTo: z.string().optional(),
+	redirectTo: z.string().max(2000).optional(),
 })
 
 export async function loader({ request }: Route.LoaderArgs) {
@@ -38,6 +38,19 @@ export async function action({ request }: Route.ActionArgs) {
 		return redirect(safeRedirectPath(redirectTo), { headers })
 	} catch (error) {
 		if (!(error instanceof APIError)) throw error
+		if (error.body?.code === 'RATE_LIMITED') {
+			// Too many attempts from this address or for this e-mail (app/.server/security/sign-in-limits.ts).
+			const retryAfter = String(Number(error.body.retryAfterSeconds) || 60)
+			return data(
+				{
+					result: submission.reply({
+						formErrors: [error.body.message ?? 'Too many sign-in attempts.'],
+						hideFields: ['password'],
+					}),
+				},
+				{ status: 429, headers: { 'Retry-After': retryAfter } },
+			)
+		}
 		const blocked = error.body?.code === 'ACCOUNT_BLOCKED'
 		const message = blocked
 			? (error.body?.message ?? 'This account cannot sign in.')
@@ -47,6 +60,14 @@ export async function action({ request }: Route.ActionArgs) {
 			{ status: blocked ? 403 : 401 },
 		)
 	}
+}
+
+/** A refused attempt's Retry-After reaches the page's response too, next to what the root sets (its cookies). */
+export function headers({ actionHeaders, parentHeaders }: Route.HeadersArgs) {
+	const headers = new Headers(parentHeaders)
+	const retryAfter = actionHeaders.get('Retry-After')
+	if (retryAfter) headers.set('Retry-After', retryAfter)
+	return headers
 }
 
 export default function SignIn({ actionData }: Route.ComponentProps) {

@@ -76,7 +76,7 @@ export default function Grants({ loaderData, actionData }: Route.ComponentProps)
 				description="Read-only, time-boxed access of inspectors to released versions, their dossiers and audit extracts. A grant ends by itself at its end date."
 			/>
 			{actionData?.message ? <FormErrors errors={[actionData.message]} /> : null}
-			<ListTable headers={['Inspector', 'For', 'Covers', 'From', 'Until', 'Status', '']}>
+			<ListTable headers={['Inspector', 'For', 'Covers', 'Starts', 'Ends', 'Status', '']}>
 				{loaderData.grants.map((grant) => (
 					<tr key={grant.id} className="border-rule border-b last:border-0" data-testid="grant-row">
 						<td className="px-3 py-2">{grant.inspectorName}</td>

@@ -1,0 +1,210 @@
+import { z } from 'zod'
+import { db } from '#app/.server/db/client.ts'
+import { resolveApiKey } from '#app/.server/services/api-keys.ts'
+import { type Actor, type ApiKeyScope, can, isReadOnly, type Permission } from '#shared/authz/permissions.ts'
+import { DomainError } from '#shared/errors.ts'
+
+/** Largest JSON request body the API reads (uploads have their own limit in app/.server/uploads.ts). */
+export const MAX_JSON_BODY_BYTES = 64 * 1024
+
+export const PROBLEM_CONTENT_TYPE = 'application/problem+json'
+
+const TITLES: Record<number, string> = {
+	400: 'Bad Request',
+	401: 'Unauthorized',
+	403: 'Forbidden',
+	404: 'Not Found',
+	409: 'Conflict',
+	413: 'Content Too Large',
+	415: 'Unsupported Media Type',
+	422: 'Unprocessable Content',
+	500: 'Internal Server Error',
+}
+
+/** An RFC 9457 problem; `type` stays 'about:blank', so `title` is the HTTP status phrase (RFC 9457 §4.2.1). */
+export class ApiProblem extends Error {
+	readonly status: number
+	readonly extensions: Record<string, unknown>
+	constructor(status: number, detail: string, extensions: Record<string, unknown> = {}) {
+		super(detail)
+		this.status = status
+		this.extensions = extensions
+	}
+}
+
+export function problemResponse(
+	status: number,
+	detail: string,
+	extensions: Record<string, unknown> = {},
+	headers: HeadersInit = {},
+): Response {
+	const body = { type: 'about:blank', title: TITLES[status] ?? 'Error', status, detail, ...extensions }
+	const merged = new Headers(headers)
+	merged.set('Content-Type', PROBLEM_CONTENT_TYPE)
+	merged.set('Cache-Control', 'no-store')
+	return new Response(JSON.stringify(body), { status, headers: merged })
+}
+
+function messageOf(payload: unknown, fallback: string): string {
+	if (typeof payload === 'string') return payload
+	if (payload && typeof payload === 'object' && 'message' in payload && typeof payload.message === 'string')
+		return payload.message
+	return fallback
+}
+
+/** Whatever a handler threw, as problem+json: our problems, domain errors, and `data()`/Responses thrown by shared code. */
+async function toProblem(thrown: unknown): Promise<Response> {
+	if (thrown instanceof ApiProblem) {
+		const headers: HeadersInit = thrown.status === 401 ? { 'WWW-Authenticate': 'Bearer realm="bandproof"' } : {}
+		return problemResponse(thrown.status, thrown.message, thrown.extensions, headers)
+	}
+	if (thrown instanceof DomainError) return problemResponse(thrown.status, thrown.message)
+	if (isThrownData(thrown)) {
+		const status = thrown.init?.status ?? 500
+		return problemResponse(status, messageOf(thrown.data, TITLES[status] ?? 'Error'))
+	}
+	if (thrown instanceof Response) {
+		if (thrown.headers.get('Content-Type')?.startsWith(PROBLEM_CONTENT_TYPE)) return thrown
+		return problemResponse(thrown.status, (await thrown.text().catch(() => '')) || (TITLES[thrown.status] ?? 'Error'))
+	}
+	console.error('API request failed', thrown)
+	return problemResponse(500, 'The server failed to answer this request; nothing was changed by the failure.')
+}
+
+/**
+ * What `data(payload, { status })` throws (shared code answers refusals that way). Recognised by its shape: the
+ * class is not exported by react-router's server entry.
+ */
+function isThrownData(
+	value: unknown,
+): value is { type: 'DataWithResponseInit'; data: unknown; init: ResponseInit | null } {
+	return (
+		typeof value === 'object' &&
+		value !== null &&
+		'type' in value &&
+		value.type === 'DataWithResponseInit' &&
+		'data' in value
+	)
+}
+
+function bearerToken(request: Request): string | null {
+	const header = request.headers.get('Authorization')
+	const match = header ? /^Bearer\s+(\S+)\s*$/i.exec(header) : null
+	return match?.[1] ?? null
+}
+
+const REFUSALS = {
+	unknown: 'This API key is not valid.',
+	revoked: 'This API key has been revoked.',
+	deactivated: 'The account that owns this API key is deactivated.',
+} as const
+
+async function authenticate(
+	request: Request,
+	now: Date,
+): Promise<{ actor: Actor; scopes: ReadonlyArray<ApiKeyScope> }> {
+	const token = bearerToken(request)
+	if (!token) throw new ApiProblem(401, 'Send an API key as "Authorization: Bearer <token>".')
+	const resolved = await resolveApiKey(db, token, now)
+	if (resolved.status !== 'ok') throw new ApiProblem(401, REFUSALS[resolved.status])
+	return resolved
+}
+
+async function readJson(request: Request): Promise<unknown> {
+	const declared = Number(request.headers.get('Content-Length') ?? '0')
+	if (declared > MAX_JSON_BODY_BYTES)
+		throw new ApiProblem(413, `The request body may be at most ${MAX_JSON_BODY_BYTES} bytes.`)
+	const type = request.headers.get('Content-Type') ?? ''
+	if (!type.toLowerCase().startsWith('application/json'))
+		throw new ApiProblem(415, 'Send the request body as application/json.')
+	const text = await request.text()
+	if (Buffer.byteLength(text, 'utf8') > MAX_JSON_BODY_BYTES)
+		throw new ApiProblem(413, `The request body may be at most ${MAX_JSON_BODY_BYTES} bytes.`)
+	try {
+		return JSON.parse(text) as unknown
+	} catch {
+		throw new ApiProblem(400, 'The request body is not valid JSON.')
+	}
+}
+
+function validationProblem(status: number, where: string, error: z.ZodError): ApiProblem {
+	return new ApiProblem(status, `The ${where} is not valid: ${z.prettifyError(error)}`, {
+		errors: error.issues.map((issue) => ({ path: issue.path.join('.'), message: issue.message })),
+	})
+}
+
+export type ApiRouteOptions<Q extends z.ZodType, B extends z.ZodType> = {
+	scope: ApiKeyScope
+	permission: Permission
+	/** Inspectors pass without `permission`; the handler then answers only what their grant covers. */
+	inspectorsByGrant?: boolean
+	query?: Q
+	body?: B
+}
+
+export type ApiHandlerInput<Q extends z.ZodType, B extends z.ZodType> = {
+	request: Request
+	params: Record<string, string | undefined>
+	actor: Actor
+	/** True when the actor is here by an inspector's grant rather than by `permission`. */
+	byGrant: boolean
+	query: z.output<Q>
+	body: z.output<B>
+	now: Date
+}
+
+/**
+ * The one wrapper of every /api/v1 route: API key → the app's Actor, the key's scope, the permission through
+ * `can()`, zod-parsed query and body, and every failure as application/problem+json (RFC 9457).
+ */
+export function apiRoute<Q extends z.ZodType = z.ZodUndefined, B extends z.ZodType = z.ZodUndefined>(
+	options: ApiRouteOptions<Q, B>,
+	handler: (input: ApiHandlerInput<Q, B>) => Promise<Response>,
+) {
+	return async ({ request, params }: { request: Request; params: Record<string, string | undefined> }) => {
+		try {
+			const now = new Date()
+			const { actor, scopes } = await authenticate(request, now)
+			if (!scopes.includes(options.scope)) throw new ApiProblem(403, `This API key lacks the "${options.scope}" scope.`)
+			if (isReadOnly(actor) && request.method !== 'GET' && request.method !== 'HEAD')
+				throw new ApiProblem(403, 'Your access is read-only.')
+			const permitted = can(actor, options.permission)
+			const byGrant = !permitted && options.inspectorsByGrant === true && can(actor, 'inspection:read')
+			if (!permitted && !byGrant) throw new ApiProblem(403, `Your roles do not allow this (${options.permission}).`)
+			let query: unknown = undefined
+			if (options.query) {
+				const parsed = options.query.safeParse(Object.fromEntries(new URL(request.url).searchParams))
+				if (!parsed.success) throw validationProblem(400, 'query string', parsed.error)
+				query = parsed.data
+			}
+			let body: unknown = undefined
+			if (options.body) {
+				const parsed = options.body.safeParse(await readJson(request))
+				if (!parsed.success) throw validationProblem(422, 'request body', parsed.error)
+				body = parsed.data
+			}
+			return await handler({
+				request,
+				params,
+				actor,
+				byGrant,
+				query: query as z.output<Q>,
+				body: body as z.output<B>,
+				now,
+			})
+		} catch (thrown) {
+			return toProblem(thrown)
+		}
+	}
+}
+
+/** A path parameter that must be a UUID: anything else cannot name a record, so it is a 404. */
+export function uuidParam(params: Record<string, string | undefined>, name: string, what: string): string {
+	const value = params[name]
+	if (!z.uuid().safeParse(value).success) throw new ApiProblem(404, `${what} was not found.`)
+	return value!
+}
+
+export function notFound(what: string): never {
+	throw new ApiProblem(404, `${what} was not found.`)
+}
