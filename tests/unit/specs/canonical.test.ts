@@ -12,9 +12,9 @@ import {
 } from '#shared/specs/canonical.ts'
 import { emptyVersionContent, type SpecVersionContent, TECHNIQUES } from '#shared/specs/version-content.ts'
 
-// RFC 8785 examples below were read in a verbatim transcription of the RFC's text held in a public repository
+// RFC 8785 examples below were read in a verbatim copy of the RFC's text held in a public repository
 // (a secondary copy: READ-2° in FACTS.md's terms); they agree with the RFC as remembered.
-const RFC = 'RFC 8785 (READ-2°, verbatim transcription)'
+const RFC = 'RFC 8785 (READ-2°, verbatim copy)'
 
 test(`[HASH-001] the §3.2.2 sample canonicalises to the §3.2.3 output — ${RFC} §3.2.2, §3.2.3`, () => {
 	const input = String.raw`{
