@@ -1,8 +1,8 @@
 import { createHash } from 'node:crypto'
 import { readFile } from 'node:fs/promises'
 import { type Page } from '@playwright/test'
-import { getDocument } from 'pdfjs-dist/legacy/build/pdf.mjs'
 import { expect, signIn, snapshot, test } from './fixtures.ts'
+import { pdfPageTexts } from '#tests/support/pdf-text.ts'
 
 // The demo scenario (scripts/demo-scenario.ts) stores the dossiers of QC-IR-0001 ("Identification of paracetamol by
 // ATR-FTIR") v1 (superseded) and v2 (effective) at seed time; QC-IR-0003 (acetylsalicylic acid) is a version 1 in
@@ -24,29 +24,6 @@ async function download(page: Page, name: 'Download PDF' | 'Download DOCX', keep
 	await file.saveAs(path)
 	const bytes = await readFile(path)
 	return { bytes, fileName: file.suggestedFilename(), path, sha256: sha256(bytes) }
-}
-
-/** The text of each page, as a reader's software extracts it (pdfjs-dist, legacy build for Node). */
-async function pdfPageTexts(bytes: Uint8Array): Promise<Array<string>> {
-	const pdf = await getDocument({
-		data: new Uint8Array(bytes),
-		verbosity: 0,
-		isEvalSupported: false,
-		disableFontFace: true,
-	}).promise
-	const pages: Array<string> = []
-	for (let n = 1; n <= pdf.numPages; n++) {
-		const content = await (await pdf.getPage(n)).getTextContent()
-		pages.push(
-			content.items
-				.map((item) => ('str' in item ? item.str : ''))
-				.join(' ')
-				.replace(/\s+/g, ' ')
-				.trim(),
-		)
-	}
-	await pdf.destroy()
-	return pages
 }
 
 async function openSpecification(page: Page, documentNumber: string) {

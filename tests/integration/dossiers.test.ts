@@ -1,6 +1,5 @@
 import { createHash } from 'node:crypto'
 import { eq, sql } from 'drizzle-orm'
-import { getDocument } from 'pdfjs-dist/legacy/build/pdf.mjs'
 import { expect, test } from 'vitest'
 import { db } from '#app/.server/db/client.ts'
 import { auditEvents } from '#app/.server/db/schema/audit.ts'
@@ -9,16 +8,7 @@ import { getDossier, listDossierRecords } from '#app/.server/services/dossiers.t
 import { versionContentHash } from '#app/.server/services/spec-workflow.ts'
 import { identifyDossier } from '#shared/dossier/identify.ts'
 import { makeActor, makeSignedVersion, makeSubmittableDraft } from '#tests/support/factories.ts'
-
-async function pdfPages(bytes: Uint8Array): Promise<Array<string>> {
-	const pdf = await getDocument({ data: new Uint8Array(bytes), useSystemFonts: false, isEvalSupported: false }).promise
-	const pages: Array<string> = []
-	for (let number = 1; number <= pdf.numPages; number++) {
-		const content = await (await pdf.getPage(number)).getTextContent()
-		pages.push(content.items.map((item) => ('str' in item ? item.str : '')).join(' '))
-	}
-	return pages
-}
+import { pdfPageTexts as pdfPages } from '#tests/support/pdf-text.ts'
 
 async function cast() {
 	return {

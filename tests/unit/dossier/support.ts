@@ -8,6 +8,7 @@ import path from 'node:path'
 import { getDocument } from 'pdfjs-dist/legacy/build/pdf.mjs'
 import type { DossierDataInput } from '#shared/dossier/model.ts'
 import { readZip } from '#app/.server/render/zip.ts'
+export { pdfPageTexts } from '#tests/support/pdf-text.ts'
 
 export const SAMPLE_PATH = path.resolve(process.cwd(), 'templates', 'dossier', 'sample-data.json')
 
@@ -58,29 +59,6 @@ export function withEvidence(data: DossierDataInput, count: number): DossierData
 		title: `Record ${i + 1}`,
 	}))
 	return { ...data, evidence }
-}
-
-/** Text of each page of a PDF, as pdfjs-dist extracts it (items joined by spaces, whitespace collapsed). */
-export async function pdfPageTexts(bytes: Uint8Array): Promise<Array<string>> {
-	const pdf = await getDocument({
-		data: new Uint8Array(bytes),
-		verbosity: 0,
-		isEvalSupported: false,
-		disableFontFace: true,
-	}).promise
-	const pages: Array<string> = []
-	for (let n = 1; n <= pdf.numPages; n++) {
-		const content = await (await pdf.getPage(n)).getTextContent()
-		pages.push(
-			content.items
-				.map((item) => ('str' in item ? item.str : ''))
-				.join(' ')
-				.replace(/\s+/g, ' ')
-				.trim(),
-		)
-	}
-	await pdf.destroy()
-	return pages
 }
 
 /** Positioned text items of one PDF page: string and baseline origin (x, y) in points. */
