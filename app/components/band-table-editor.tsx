@@ -31,6 +31,28 @@ function newRowId(): string {
 	return `band-${Date.now().toString(36)}-${counter}`
 }
 
+const BAND_COLUMNS = ['Position (cm⁻¹)', '± cm⁻¹', 'Assignment', 'Intensity', 'Shape', 'Required'] as const
+
+/** The header row shared by the read-only band table and the editor. */
+function BandTableHead({ cellClass, withActions = false }: { cellClass: string; withActions?: boolean }) {
+	return (
+		<thead>
+			<tr className="border-rule border-b text-left">
+				{BAND_COLUMNS.map((column) => (
+					<th key={column} scope="col" className={cn(cellClass, 'font-semibold')}>
+						{column}
+					</th>
+				))}
+				{withActions ? (
+					<th scope="col" className={cellClass}>
+						<span className="sr-only">Row actions</span>
+					</th>
+				) : null}
+			</tr>
+		</thead>
+	)
+}
+
 /** The band table of a version that can no longer be edited, as plain text. */
 export function BandTableView({ rows }: { rows: Array<BandRow> }) {
 	return (
@@ -45,28 +67,7 @@ export function BandTableView({ rows }: { rows: Array<BandRow> }) {
 				<p className="text-ink-soft text-sm">No bands.</p>
 			) : (
 				<table className="w-full text-sm">
-					<thead>
-						<tr className="border-rule border-b text-left">
-							<th scope="col" className="py-1.5 pr-3 font-semibold">
-								Position (cm⁻¹)
-							</th>
-							<th scope="col" className="py-1.5 pr-3 font-semibold">
-								± cm⁻¹
-							</th>
-							<th scope="col" className="py-1.5 pr-3 font-semibold">
-								Assignment
-							</th>
-							<th scope="col" className="py-1.5 pr-3 font-semibold">
-								Intensity
-							</th>
-							<th scope="col" className="py-1.5 pr-3 font-semibold">
-								Shape
-							</th>
-							<th scope="col" className="py-1.5 font-semibold">
-								Required
-							</th>
-						</tr>
-					</thead>
+					<BandTableHead cellClass="py-1.5 pr-3" />
 					<tbody>
 						{rows.map((row) => (
 							<tr key={row.id} className="border-rule border-b last:border-0">
@@ -101,7 +102,6 @@ export function BandTableEditor({
 	problems: Array<BandRowProblem>
 	suggestionsUrl: string
 }) {
-	const readOnly = false
 	const [rows, setRows] = useState(initialRows)
 	const suggestions = useFetcher<SuggestionPayload>()
 	useEffect(() => setRows(initialRows), [initialRows])
@@ -142,7 +142,7 @@ export function BandTableEditor({
 						({rows.length} {rows.length === 1 ? 'band' : 'bands'})
 					</span>
 				</h3>
-				{readOnly ? null : (
+				{
 					<div className="flex gap-2">
 						<Button
 							variant="secondary"
@@ -156,7 +156,7 @@ export function BandTableEditor({
 							Add a band
 						</Button>
 					</div>
-				)}
+				}
 			</div>
 			{suggestions.data ? (
 				<div className="border-accent bg-accent-soft rounded-md border p-3 text-sm" aria-live="polite">
@@ -206,38 +206,12 @@ export function BandTableEditor({
 			) : null}
 			{rows.length === 0 ? (
 				<p className="text-ink-soft text-sm">
-					No bands yet. {readOnly ? '' : 'Suggest them from the reference spectrum, or add them one by one.'}
+					No bands yet. Suggest them from the reference spectrum, or add them one by one.
 				</p>
 			) : (
 				<div className="overflow-x-auto">
 					<table className="w-full text-sm">
-						<thead>
-							<tr className="border-rule border-b text-left">
-								<th scope="col" className="px-1 py-1.5 font-semibold">
-									Position (cm⁻¹)
-								</th>
-								<th scope="col" className="px-1 py-1.5 font-semibold">
-									± cm⁻¹
-								</th>
-								<th scope="col" className="px-1 py-1.5 font-semibold">
-									Assignment
-								</th>
-								<th scope="col" className="px-1 py-1.5 font-semibold">
-									Intensity
-								</th>
-								<th scope="col" className="px-1 py-1.5 font-semibold">
-									Shape
-								</th>
-								<th scope="col" className="px-1 py-1.5 font-semibold">
-									Required
-								</th>
-								{readOnly ? null : (
-									<th scope="col" className="px-1 py-1.5">
-										<span className="sr-only">Row actions</span>
-									</th>
-								)}
-							</tr>
-						</thead>
+						<BandTableHead cellClass="px-1 py-1.5" withActions />
 						<tbody>
 							{rows.map((row, index) => {
 								const rowProblems = problemsOf(row.id)
@@ -253,7 +227,6 @@ export function BandTableEditor({
 												type="number"
 												step="0.1"
 												value={row.position || ''}
-												readOnly={readOnly}
 												onChange={(event) => update(row.id, { position: Number(event.currentTarget.value) })}
 												className={cn(cell, 'w-24 tabular-nums')}
 												aria-invalid={rowProblems.some((problem) => problem.field !== 'tolerance') || undefined}
@@ -267,7 +240,6 @@ export function BandTableEditor({
 												min="0"
 												placeholder="default"
 												value={row.tolerance ?? ''}
-												readOnly={readOnly}
 												onChange={(event) =>
 													update(row.id, {
 														tolerance: event.currentTarget.value === '' ? null : Number(event.currentTarget.value),
@@ -281,7 +253,6 @@ export function BandTableEditor({
 											<input
 												aria-label={`Assignment of ${label}`}
 												value={row.assignment}
-												readOnly={readOnly}
 												onChange={(event) => update(row.id, { assignment: event.currentTarget.value })}
 												className={cn(cell, 'w-full min-w-56')}
 											/>
@@ -295,7 +266,6 @@ export function BandTableEditor({
 											<select
 												aria-label={`Intensity of ${label}`}
 												value={row.intensityClass}
-												disabled={readOnly}
 												onChange={(event) =>
 													update(row.id, { intensityClass: event.currentTarget.value as BandRow['intensityClass'] })
 												}
@@ -312,7 +282,6 @@ export function BandTableEditor({
 											<select
 												aria-label={`Shape of ${label}`}
 												value={row.shape}
-												disabled={readOnly}
 												onChange={(event) => update(row.id, { shape: event.currentTarget.value as BandRow['shape'] })}
 												className={cell}
 											>
@@ -325,12 +294,11 @@ export function BandTableEditor({
 												aria-label={`${label} is required`}
 												type="checkbox"
 												checked={row.required}
-												disabled={readOnly}
 												onChange={(event) => update(row.id, { required: event.currentTarget.checked })}
 												className="accent-accent mt-2"
 											/>
 										</td>
-										{readOnly ? null : (
+										{
 											<td className="px-1 py-1 whitespace-nowrap">
 												<Button
 													size="sm"
@@ -359,7 +327,7 @@ export function BandTableEditor({
 													Remove
 												</Button>
 											</td>
-										)}
+										}
 									</tr>
 								)
 							})}
@@ -367,12 +335,12 @@ export function BandTableEditor({
 					</table>
 				</div>
 			)}
-			{readOnly ? null : (
+			{
 				<p className="text-ink-faint text-xs">
 					An empty tolerance uses the default tolerance of the acceptance criteria, or 0.5 % of the position (Ph. Eur.
 					2.2.24) when none is set.
 				</p>
-			)}
+			}
 		</section>
 	)
 }
