@@ -2,13 +2,14 @@
  * Who may do what. Pure and shared: the server enforces it (app/.server/context.ts is the only place that
  * answers 403) and the UI uses the same map to decide what to show.
  */
-export const ROLES = ['author', 'reviewer', 'approver', 'inspector', 'admin'] as const
+export const ROLES = ['author', 'reviewer', 'approver', 'analyst', 'inspector', 'admin'] as const
 export type Role = (typeof ROLES)[number]
 
 export const ROLE_LABELS: Record<Role, string> = {
 	author: 'Author',
 	reviewer: 'Reviewer',
 	approver: 'Approver',
+	analyst: 'Analyst',
 	inspector: 'Inspector',
 	admin: 'Administrator',
 }
@@ -17,21 +18,22 @@ export const ROLE_DUTIES: Record<Role, string> = {
 	author: 'Drafts specifications, uploads spectra, builds band tables',
 	reviewer: 'Redlines drafts and signs them as reviewed',
 	approver: 'Signs approval and sets the effective date',
+	analyst: "Checks instruments, tests incoming lots container by container and verifies colleagues' runs",
 	inspector: 'Reads effective and historical records during an access grant',
 	admin: 'Manages users, roles, grants, templates and settings',
 }
 
-const LAB_STAFF = ['author', 'reviewer', 'approver', 'admin'] as const
+const LAB_STAFF = ['author', 'reviewer', 'approver', 'analyst', 'admin'] as const
 
 const grants = {
-	'workspace:enter': ['author', 'reviewer', 'approver', 'inspector', 'admin'],
+	'workspace:enter': ['author', 'reviewer', 'approver', 'analyst', 'inspector', 'admin'],
 	'material:read': LAB_STAFF,
 	'material:edit': ['author', 'admin'],
 	'spectrum:read': LAB_STAFF,
 	'spectrum:upload': ['author', 'admin'],
 	// Inspectors read released versions only, through their access grants (the inspection area), never drafts.
 	'spec:read': LAB_STAFF,
-	'dossier:verify': ['author', 'reviewer', 'approver', 'inspector', 'admin'],
+	'dossier:verify': ['author', 'reviewer', 'approver', 'analyst', 'inspector', 'admin'],
 	'spec:create': ['author'],
 	'spec:edit': ['author'],
 	'spec-version:sign': ['reviewer', 'approver'],
@@ -42,7 +44,16 @@ const grants = {
 	'grant:manage': ['admin'],
 	'mailbox:read': ['admin'],
 	// Everyone signed in may hold personal API keys; an inspector's keys are read-only (see apiKeyScopesFor).
-	'api-key:manage': ['author', 'reviewer', 'approver', 'inspector', 'admin'],
+	'api-key:manage': ['author', 'reviewer', 'approver', 'analyst', 'inspector', 'admin'],
+	// Release testing of incoming lots. Recording and signing a run is the analyst's; a second person verifies it
+	// (never the one who performed it, enforced in shared/runs/run-rules.ts); QA approvers close investigations.
+	'instrument:read': LAB_STAFF,
+	'instrument:manage': ['analyst', 'admin'],
+	'instrument-check:record': ['analyst'],
+	'run:read': LAB_STAFF,
+	'run:record': ['analyst'],
+	'run:verify': ['analyst', 'reviewer', 'approver'],
+	'investigation:close': ['approver'],
 } as const satisfies Record<string, ReadonlyArray<Role>>
 
 export type Permission = keyof typeof grants

@@ -8,6 +8,7 @@ import * as grants from './schema/grants.ts'
 import * as materials from './schema/materials.ts'
 import * as outbox from './schema/outbox.ts'
 import * as roles from './schema/roles.ts'
+import * as runs from './schema/runs.ts'
 import * as specifications from './schema/specifications.ts'
 import * as spectra from './schema/spectra.ts'
 
@@ -22,6 +23,7 @@ export const schema = {
 	...dossiers,
 	...grants,
 	...apiKeysSchema,
+	...runs,
 }
 
 function connect(url: string) {

@@ -56,53 +56,10 @@ export async function storeSpectrumFile(
 	}
 	const imported = importSpectrum(bytes, { fileName, maxBytes: MAX_SPECTRUM_FILE_BYTES })
 	if (!imported.ok) return { fileName, status: 'failed', message: imported.error.message }
-	const { spectrum, metadata, warnings } = imported.value
-	const points = spectrum.x.length
-	const id = await db.transaction(async (tx) => {
-		const [row] = await tx
-			.insert(spectra)
-			.values({
-				sha256,
-				fileName,
-				byteSize: bytes.byteLength,
-				originalBytes: bytes,
-				format: metadata.format,
-				title: metadata.title,
-				points,
-				minWavenumber: spectrum.x[0]!,
-				maxWavenumber: spectrum.x[points - 1]!,
-				xUnits: metadata.xUnits,
-				yUnits: metadata.yUnits,
-				ordinate: metadata.ordinate,
-				x: floatsToBytes(spectrum.x),
-				y: floatsToBytes(spectrum.y),
-				warnings,
-				labels: metadata.labels,
-				parserVersion: ENGINE_VERSION,
-				...input.metadata,
-				uploadedBy: input.actor.id,
-				uploadedAt: input.now,
-			})
-			.onConflictDoNothing({ target: spectra.sha256 })
-			.returning({ id: spectra.id })
-		if (!row) return null
-		await recordAudit(tx, {
-			actor: { id: input.actor.id, label: input.actor.email },
-			action: 'spectrum.uploaded',
-			entityType: 'spectrum',
-			entityId: row.id,
-			after: {
-				fileName,
-				sha256,
-				points,
-				format: metadata.format,
-				ordinate: metadata.ordinate,
-				purpose: input.metadata.purpose,
-			},
-			occurredAt: input.now,
-		})
-		return row.id
-	})
+	const points = imported.value.spectrum.x.length
+	const id = await db.transaction((tx) =>
+		insertSpectrum(tx, { ...input, sha256, imported: imported.value, lockedAt: null }),
+	)
 	if (!id) {
 		// Someone stored the same bytes between our check and our insert.
 		const [winner] = await db.select({ id: spectra.id }).from(spectra).where(eq(spectra.sha256, sha256))
@@ -113,7 +70,80 @@ export async function storeSpectrumFile(
 			message: 'This file is already in the library; it was not stored twice.',
 		}
 	}
-	return { fileName, status: 'stored', spectrumId: id, points, warnings: warnings.map((warning) => warning.message) }
+	return {
+		fileName,
+		status: 'stored',
+		spectrumId: id,
+		points,
+		warnings: imported.value.warnings.map((warning) => warning.message),
+	}
+}
+
+export type ImportedSpectrum = Extract<ReturnType<typeof importSpectrum>, { ok: true }>['value']
+
+/**
+ * Inserts one parsed file with its audit event, inside the caller's transaction. Returns null when the same bytes
+ * were stored meanwhile (the SHA-256 is unique). `lockedAt` freezes the row at once (evidence of a run or a check).
+ */
+export async function insertSpectrum(
+	tx: Db,
+	input: {
+		actor: Actor
+		fileName: string
+		bytes: Uint8Array
+		sha256: string
+		imported: ImportedSpectrum
+		metadata: SpectrumMetadata
+		now: Date
+		lockedAt: Date | null
+	},
+): Promise<string | null> {
+	const { spectrum, metadata, warnings } = input.imported
+	const points = spectrum.x.length
+	const [row] = await tx
+		.insert(spectra)
+		.values({
+			sha256: input.sha256,
+			fileName: input.fileName,
+			byteSize: input.bytes.byteLength,
+			originalBytes: input.bytes,
+			format: metadata.format,
+			title: metadata.title,
+			points,
+			minWavenumber: spectrum.x[0]!,
+			maxWavenumber: spectrum.x[points - 1]!,
+			xUnits: metadata.xUnits,
+			yUnits: metadata.yUnits,
+			ordinate: metadata.ordinate,
+			x: floatsToBytes(spectrum.x),
+			y: floatsToBytes(spectrum.y),
+			warnings,
+			labels: metadata.labels,
+			parserVersion: ENGINE_VERSION,
+			...input.metadata,
+			uploadedBy: input.actor.id,
+			uploadedAt: input.now,
+			lockedAt: input.lockedAt,
+		})
+		.onConflictDoNothing({ target: spectra.sha256 })
+		.returning({ id: spectra.id })
+	if (!row) return null
+	await recordAudit(tx, {
+		actor: { id: input.actor.id, label: input.actor.email },
+		action: 'spectrum.uploaded',
+		entityType: 'spectrum',
+		entityId: row.id,
+		after: {
+			fileName: input.fileName,
+			sha256: input.sha256,
+			points,
+			format: metadata.format,
+			ordinate: metadata.ordinate,
+			purpose: input.metadata.purpose,
+		},
+		occurredAt: input.now,
+	})
+	return row.id
 }
 
 /** The parsed data of a stored spectrum, or null. */

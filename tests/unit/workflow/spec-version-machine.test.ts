@@ -136,7 +136,7 @@ test.each(EVERY_STEP_IN_EVERY_STATE)('[WF-001] %s from %s → %s', (action, stat
 	}
 })
 
-const HUMAN_ROLES: Array<Role> = ['author', 'reviewer', 'approver', 'inspector', 'admin']
+const HUMAN_ROLES: Array<Role> = ['author', 'reviewer', 'approver', 'analyst', 'inspector', 'admin']
 type Who = Role | 'system'
 
 // Who may take each step, by role (PRODUCT.md §2; 21 CFR 11.10(g) — FACTS.md §3.1 [READ]).
