@@ -47,6 +47,21 @@ export default [
 			route(':specId/versions/:versionId/band-suggestions', 'routes/specifications/band-suggestions.ts'),
 			route(':specId/versions/:versionId/dossier/:format', 'routes/specifications/dossier.ts'),
 		]),
+		...prefix('instruments', [
+			index('routes/instruments/index.tsx'),
+			route('new', 'routes/instruments/new.tsx'),
+			route(':instrumentId', 'routes/instruments/$instrumentId.tsx'),
+		]),
+		...prefix('lots', [
+			index('routes/lots/index.tsx'),
+			route('new', 'routes/lots/new.tsx'),
+			route(':lotId', 'routes/lots/$lotId.tsx'),
+		]),
+		...prefix('runs', [
+			route(':runId', 'routes/runs/$runId.tsx'),
+			route(':runId/retest', 'routes/runs/retest.tsx'),
+			route(':runId/containers/:containerNumber', 'routes/runs/container.tsx'),
+		]),
 		route('queue', 'routes/queue.tsx'),
 		route('verify', 'routes/verify.tsx'),
 		route('api-docs', 'routes/api-docs.tsx'),

@@ -9,11 +9,12 @@ export const MAX_FILES_PER_REQUEST = 50
  * Parses a multipart upload as a stream with per-file and per-request limits. Over a limit, answers 413
  * with a message that says what to do; nothing of the request is kept.
  */
-export async function parseUpload(request: Request): Promise<FormData> {
+export async function parseUpload(request: Request, options: { maxFiles?: number } = {}): Promise<FormData> {
+	const maxFiles = options.maxFiles ?? MAX_FILES_PER_REQUEST
 	try {
 		return await parseFormData(
 			request,
-			{ maxFileSize: MAX_SPECTRUM_FILE_BYTES, maxFiles: MAX_FILES_PER_REQUEST, maxHeaderSize: 8 * 1024 },
+			{ maxFileSize: MAX_SPECTRUM_FILE_BYTES, maxFiles, maxHeaderSize: 8 * 1024 },
 			(file) => file,
 		)
 	} catch (error) {
@@ -26,7 +27,7 @@ export async function parseUpload(request: Request): Promise<FormData> {
 			)
 		}
 		if (error instanceof MaxFilesExceededError) {
-			throw data({ message: `Upload at most ${MAX_FILES_PER_REQUEST} files at a time.` }, { status: 413 })
+			throw data({ message: `Upload at most ${maxFiles} files at a time. Nothing was stored.` }, { status: 413 })
 		}
 		throw error
 	}

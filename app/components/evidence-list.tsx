@@ -18,7 +18,7 @@ type Item = {
 	createdByName: string
 }
 
-type ComparisonResult = {
+export type ComparisonResult = {
 	verdict: string
 	reasons: Array<string>
 	correlation: number | null
@@ -117,7 +117,7 @@ export function EvidenceList({
 	)
 }
 
-function ComparisonDetail({
+export function ComparisonDetail({
 	result,
 	sample,
 	referenceId,
@@ -125,6 +125,7 @@ function ComparisonDetail({
 	bands,
 	exclusionRegions,
 	title,
+	overlayOpen = false,
 }: {
 	result: ComparisonResult
 	sample: string | null
@@ -133,8 +134,10 @@ function ComparisonDetail({
 	bands: Array<{ position: number; tolerance?: number; label: string }>
 	exclusionRegions: Array<Region>
 	title: string
+	/** Show the overlay at once (a page about one comparison) instead of on request (a list of them). */
+	overlayOpen?: boolean
 }) {
-	const [overlay, setOverlay] = useState(false)
+	const [overlay, setOverlay] = useState(overlayOpen)
 	return (
 		<div className="mt-3 space-y-3 text-sm">
 			<dl className="grid grid-cols-2 gap-x-6 gap-y-1 sm:grid-cols-4">

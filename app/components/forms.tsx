@@ -111,4 +111,56 @@ export function TextareaField({
 	)
 }
 
+/** A labelled select with inline errors; pass Conform's getSelectProps(...) as `selectProps`. */
+export function SelectField({
+	label,
+	hint,
+	errors,
+	selectProps,
+	options,
+	placeholder,
+	className,
+}: {
+	label: string
+	hint?: string
+	errors?: ErrorList
+	selectProps: React.SelectHTMLAttributes<HTMLSelectElement>
+	options: ReadonlyArray<{ value: string; label: string; disabled?: boolean }>
+	placeholder?: string
+	className?: string
+}) {
+	const fallbackId = useId()
+	const id = selectProps.id ?? fallbackId
+	const errorId = `${id}-error`
+	const hintId = hint ? `${id}-hint` : undefined
+	const invalid = Boolean(errors?.length)
+	return (
+		<div className={className}>
+			<label htmlFor={id} className="text-ink mb-1 block text-sm font-medium">
+				{label}
+			</label>
+			<select
+				{...selectProps}
+				id={id}
+				className={cn(inputClass, selectProps.className)}
+				aria-invalid={invalid || undefined}
+				aria-describedby={[invalid ? errorId : null, hintId].filter(Boolean).join(' ') || undefined}
+			>
+				{placeholder ? <option value="">{placeholder}</option> : null}
+				{options.map((option) => (
+					<option key={option.value} value={option.value} disabled={option.disabled}>
+						{option.label}
+					</option>
+				))}
+			</select>
+			{hint ? (
+				<p id={hintId} className="text-ink-faint mt-1 text-xs">
+					{hint}
+				</p>
+			) : null}
+			<FieldErrors id={errorId} errors={errors} />
+		</div>
+	)
+}
+
 export { inputClass }

@@ -86,3 +86,13 @@ export function describeMappingProblem(problem: MappingProblem): string {
 			return `Container ${problem.container} has no spectrum.`
 	}
 }
+
+/** The analyst's corrections sent with a form: fields `container-<fileIndex>` → container number (zod-free: digits only). */
+export function parseContainerOverrides(entries: Iterable<[string, unknown]>): Record<number, number> {
+	const overrides: Record<number, number> = {}
+	for (const [key, value] of entries) {
+		const match = /^container-(\d{1,4})$/.exec(key)
+		if (match && typeof value === 'string' && /^\d{1,4}$/.test(value)) overrides[Number(match[1])] = Number(value)
+	}
+	return overrides
+}

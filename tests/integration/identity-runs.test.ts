@@ -20,10 +20,10 @@ import {
 	RunInputRefused,
 	signIdentityRun,
 } from '#app/.server/services/identity-runs.ts'
-import { recordInstrumentCheck, registerInstrument } from '#app/.server/services/instruments.ts'
 import { canonicalJson, sha256Hex } from '#shared/specs/canonical.ts'
-import { containerFiles, replicateOf } from '#tests/support/container-samples.ts'
-import { auditActionsFor, makeActor, makeSignedVersion } from '#tests/support/factories.ts'
+import { containerFiles } from '#tests/support/container-samples.ts'
+import { auditActionsFor } from '#tests/support/factories.ts'
+import { makeReleaseLab, type ReleaseLab } from '#tests/support/release-lab.ts'
 import { readReferenceFile } from '#tests/support/reference-spectra.ts'
 
 const DAY = 86_400_000
@@ -32,64 +32,9 @@ const refusedWith = (message: RegExp) => ({ cause: { code: '42501', message: exp
 const REFERENCE = 'compounds/4_chloroaniline_solid_pe1000.jdx'
 const SAME_MEASUREMENT = 'compounds/4_chloroaniline_solid_pe1000_single.jdx'
 const ISOMER = 'compounds/3_chloroaniline_pe1000.jdx'
-const GOOD_FILM = 'polystyrene/ps_film_pe1600_2cm_DIFDUP.jdx'
-const ATR_FILM = 'polystyrene/ps_film_atr_diamond_nrcan.csv'
 
 let lotSequence = 0
 const nextLot = () => `L${Date.now() % 100000}-${++lotSequence}`
-
-let filmSeed = 0
-
-/**
- * A lab set-up: an effective specification, two analysts, an instrument and (unless `film` is null) one check.
- * The default film is a replicate of the real PE 1600 film (a new measurement each time: the library refuses the
- * same bytes twice); 'real' stores the real file itself.
- */
-async function setting(options: { film?: 'replicate' | 'real' | 'atr' | null; checkedAt?: Date } = {}) {
-	const people = {
-		author: await makeActor(db, 'author'),
-		reviewer: await makeActor(db, 'reviewer'),
-		approver: await makeActor(db, 'approver'),
-	}
-	const analyst = await makeActor(db, 'analyst')
-	const secondAnalyst = await makeActor(db, 'analyst')
-	const admin = await makeActor(db, 'admin')
-	const version = await makeSignedVersion(db, people)
-	expect(version.state).toBe('effective')
-	const code = `IR-${Math.random().toString(36).slice(2, 8)}`
-	const instrument = await registerInstrument(db, {
-		actor: admin,
-		values: {
-			code,
-			name: 'Bench FTIR',
-			serialNumber: null,
-			location: 'QC lab 2',
-			checkValidityDays: 30,
-			checkTable: 'ph-eur-ft',
-		},
-		now: new Date(),
-	})
-	if (!instrument.ok) throw instrument.error
-	let check = null
-	if (options.film !== null) {
-		const film = options.film ?? 'replicate'
-		const bytes =
-			film === 'replicate'
-				? replicateOf(GOOD_FILM, 9000 + ++filmSeed, 0.001)
-				: readReferenceFile(film === 'real' ? GOOD_FILM : ATR_FILM)
-		const recorded = await recordInstrumentCheck(db, {
-			actor: analyst,
-			instrumentId: instrument.value.id,
-			fileName: film === 'atr' ? 'ps-film-atr.csv' : `ps-film-${filmSeed}.jdx`,
-			bytes,
-			notes: null,
-			now: options.checkedAt ?? new Date(),
-		})
-		if (!recorded.ok) throw recorded.error
-		check = recorded.value
-	}
-	return { people, analyst, secondAnalyst, admin, version, instrumentId: instrument.value.id, check }
-}
 
 async function tableCounts() {
 	const [lotRows] = await db.select({ n: count() }).from(lots)
@@ -99,7 +44,7 @@ async function tableCounts() {
 }
 
 function firstRun(
-	s: Awaited<ReturnType<typeof setting>>,
+	s: ReleaseLab,
 	files: Array<{ fileName: string; bytes: Uint8Array }>,
 	lotNumber: string,
 	now = new Date(),
@@ -116,22 +61,22 @@ function firstRun(
 }
 
 test('[RUN-001] a polystyrene check decides pass or fail with each band deviation (Ph. Eur. 2.2.24 FT table, ±1.0 cm⁻¹)', async () => {
-	const good = await setting({ film: 'real' })
+	const good = await makeReleaseLab({ film: 'real' })
 	expect(good.check!.passed).toBe(true)
 	for (const band of good.check!.check.bands) {
 		expect(Math.abs(band.deviation!)).toBeLessThanOrEqual(1.0)
 	}
 	// SOURCES.md: ATR film bands sit low (1599.4, 1582.0, 1026.3); the transmission limits do not pass.
-	const atr = await setting({ film: 'atr' })
+	const atr = await makeReleaseLab({ film: 'atr' })
 	expect(atr.check!.passed).toBe(false)
 	expect(atr.check!.check.reasons.length).toBeGreaterThan(0)
 	expect(await auditActionsFor(db, atr.instrumentId)).toEqual(['instrument.registered', 'instrument-check.failed'])
 })
 
 test('[RUN-002] an instrument never checked, whose last check failed or whose check expired cannot be used; nothing is stored', async () => {
-	const unchecked = await setting({ film: null })
-	const failed = await setting({ film: 'atr' })
-	const expired = await setting({ checkedAt: new Date(Date.now() - 31 * DAY) })
+	const unchecked = await makeReleaseLab({ film: null })
+	const failed = await makeReleaseLab({ film: 'atr' })
+	const expired = await makeReleaseLab({ checkedAt: new Date(Date.now() - 31 * DAY) })
 	const files = containerFiles('X', [{ relPath: REFERENCE, seed: 1 }])
 	const before = await tableCounts()
 	const outcomes = [
@@ -152,7 +97,7 @@ test('[RUN-002] an instrument never checked, whose last check failed or whose ch
 })
 
 test('[RUN-003] a five-container lot of the right material conforms; the analyst signs, a second person verifies, the identity is confirmed', async () => {
-	const s = await setting()
+	const s = await makeReleaseLab()
 	const lotNumber = nextLot()
 	const files = containerFiles(lotNumber, [
 		{ relPath: SAME_MEASUREMENT },
@@ -239,7 +184,7 @@ test('[RUN-003] a five-container lot of the right material conforms; the analyst
 })
 
 test('[RUN-004] a container of the wrong isomer flags the run; a retest is a new linked record and releases nothing until the investigation is concluded', async () => {
-	const s = await setting()
+	const s = await makeReleaseLab()
 	const lotNumber = nextLot()
 	const files = containerFiles(lotNumber, [
 		{ relPath: REFERENCE, seed: 21 },
@@ -322,7 +267,7 @@ test('[RUN-004] a container of the wrong isomer flags the run; a retest is a new
 })
 
 test('[RUN-005] a confirmed investigation rejects the lot and refuses a retest', async () => {
-	const s = await setting()
+	const s = await makeReleaseLab()
 	const lotNumber = nextLot()
 	const recorded = await firstRun(
 		s,
@@ -362,7 +307,7 @@ test('[RUN-005] a confirmed investigation rejects the lot and refuses a retest',
 })
 
 test('[RUN-006] a file set that misses a container, or gives one file twice, is refused with every reason and stores nothing', async () => {
-	const s = await setting()
+	const s = await makeReleaseLab()
 	const before = await tableCounts()
 	const lotNumber = nextLot()
 	const twoFiles = containerFiles(lotNumber, [
@@ -401,7 +346,7 @@ test('[RUN-006] a file set that misses a container, or gives one file twice, is 
 })
 
 test('[RUN-007] the record hash is the SHA-256 of the RFC 8785 canonical record (checked with an independent canonical form)', async () => {
-	const s = await setting()
+	const s = await makeReleaseLab()
 	const lotNumber = nextLot()
 	const recorded = await firstRun(s, containerFiles(lotNumber, [{ relPath: REFERENCE, seed: 61 }]), lotNumber)
 	if (!recorded.ok) throw recorded.error

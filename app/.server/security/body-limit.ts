@@ -19,6 +19,13 @@ export const STREAMED_UPLOAD_PATHS: ReadonlySet<string> = new Set([
 	'/api/v1/spectra',
 ])
 
+/** Route patterns with a parameter whose action parses a multipart upload with its own limits. */
+export const STREAMED_UPLOAD_PATTERNS: ReadonlyArray<RegExp> = [
+	/^\/lots\/new$/,
+	/^\/instruments\/[^/]+$/,
+	/^\/runs\/[^/]+\/retest$/,
+]
+
 export type BodyInput = {
 	method: string
 	pathname: string
@@ -34,7 +41,7 @@ export function decideBodySize(input: BodyInput, maxBytes = MAX_BODY_BYTES): Bod
 	const method = input.method.toUpperCase()
 	if (method === 'GET' || method === 'HEAD') return { ok: true }
 	const multipart = /^multipart\/form-data\b/i.test(input.contentType?.trim() ?? '')
-	if (multipart && STREAMED_UPLOAD_PATHS.has(routePath(input.pathname))) return { ok: true }
+	if (multipart && isStreamedUpload(routePath(input.pathname))) return { ok: true }
 	const length = parseLength(input.contentLength)
 	if (length === null) {
 		if (!input.transferEncoding) return { ok: true } // no body at all
@@ -52,6 +59,10 @@ export function decideBodySize(input: BodyInput, maxBytes = MAX_BODY_BYTES): Bod
 		}
 	}
 	return { ok: true }
+}
+
+function isStreamedUpload(path: string): boolean {
+	return STREAMED_UPLOAD_PATHS.has(path) || STREAMED_UPLOAD_PATTERNS.some((pattern) => pattern.test(path))
 }
 
 /** The route path a request is for: React Router's data requests add `.data` (and call the root `/_root.data`). */

@@ -34,6 +34,13 @@ const NAVIGATION: Array<NavGroup> = [
 		],
 	},
 	{
+		heading: 'Release testing',
+		items: [
+			{ to: '/lots', label: 'Lots and runs', permission: 'run:read' },
+			{ to: '/instruments', label: 'Instruments', permission: 'instrument:read' },
+		],
+	},
+	{
 		heading: 'Work',
 		items: [
 			{ to: '/queue', label: 'My queue', permission: 'queue:read' },

@@ -1,5 +1,5 @@
 import { expect, test } from 'vitest'
-import { decideBodySize, MAX_BODY_BYTES, routePath, STREAMED_UPLOAD_PATHS } from '#app/.server/security/body-limit.ts'
+import { decideBodySize, MAX_BODY_BYTES, routePath, STREAMED_UPLOAD_PATHS, STREAMED_UPLOAD_PATTERNS } from '#app/.server/security/body-limit.ts'
 import routes from '#app/routes.ts'
 
 const base: Parameters<typeof decideBodySize>[0] = {
@@ -74,4 +74,21 @@ test('[SEC-034] every streamed-upload path is a route of app/routes.ts', () => {
 	}
 	walk(routes as ReadonlyArray<Entry>, '')
 	for (const path of STREAMED_UPLOAD_PATHS) expect(paths, path).toContain(path)
+	// Each pattern matches a route of the map once its parameters are filled in.
+	const filled = [...paths].map((path) => path.replace(/:[A-Za-z]+/g, '0f3c6a52-5d7e-4c55-9a8e-1b2c3d4e5f60'))
+	for (const pattern of STREAMED_UPLOAD_PATTERNS) {
+		expect(
+			filled.some((path) => pattern.test(path)),
+			String(pattern),
+		).toBe(true)
+	}
+})
+
+test('[SEC-035] a multipart post to a run or check upload is streamed; the same path without multipart is capped', () => {
+	const large = { method: 'POST', contentLength: String(5 * 1024 * 1024), transferEncoding: null }
+	for (const pathname of ['/lots/new', '/instruments/0f3c6a52-5d7e-4c55-9a8e-1b2c3d4e5f60', '/runs/abc/retest']) {
+		expect(decideBodySize({ ...large, pathname, contentType: 'multipart/form-data; boundary=x' }).ok).toBe(true)
+		expect(decideBodySize({ ...large, pathname, contentType: 'application/x-www-form-urlencoded' }).ok).toBe(false)
+	}
+	expect(decideBodySize({ ...large, pathname: '/runs/abc', contentType: 'multipart/form-data; boundary=x' }).ok).toBe(false)
 })
