@@ -22,8 +22,14 @@ function gaussian(seed: number) {
 
 /** A replicate measurement of a shared real spectrum as JCAMP-DX bytes. */
 export function replicateOf(relPath: string, seed: number, sigma = 0.002): Uint8Array {
-	const imported = importSpectrum(readReferenceFile(relPath), { fileName: relPath })
-	if (!imported.ok) throw new Error(`${relPath}: ${imported.error.message}`)
+	return replicateOfFile(readReferenceFile(relPath), relPath, seed, sigma)
+}
+
+/** A replicate measurement of any spectrum file (e.g. one downloaded from the app) as JCAMP-DX bytes. */
+export function replicateOfFile(bytes: Uint8Array, fileName: string, seed: number, sigma = 0.002): Uint8Array {
+	const relPath = fileName
+	const imported = importSpectrum(bytes, { fileName })
+	if (!imported.ok) throw new Error(`${fileName}: ${imported.error.message}`)
 	const noise = gaussian(seed)
 	const { x, y } = imported.value.spectrum
 	const noisy = Float64Array.from(y, (value) => value + sigma * noise())
