@@ -21,6 +21,7 @@ import { loadSpectrum, storeSpectrumFile } from '#app/.server/services/spectra.t
 import { suggestBandRows } from '#app/.server/services/spectrum-analysis.ts'
 import type { Actor, Role } from '#shared/authz/permissions.ts'
 import type { SpecVersionContent } from '#shared/specs/version-content.ts'
+import { seedInstrumentsAndRuns } from './demo-runs.ts'
 import { DEMO_BANDS, demoJcamp } from './demo-spectra.ts'
 
 /**
@@ -33,6 +34,8 @@ export const DEMO_PEOPLE: Array<{ email: string; name: string; roles: Array<Role
 	{ email: 'author@bandproof.test', name: 'Maren Oduya', roles: ['author'], timeZone: 'Europe/London' },
 	{ email: 'reviewer@bandproof.test', name: 'Tomasz Wielgosz', roles: ['reviewer'], timeZone: 'Europe/Warsaw' },
 	{ email: 'approver@bandproof.test', name: 'Ilse Brandvold', roles: ['approver'], timeZone: 'Europe/Oslo' },
+	{ email: 'analyst@bandproof.test', name: 'Nadia Haddad', roles: ['analyst'], timeZone: 'Europe/London' },
+	{ email: 'analyst2@bandproof.test', name: 'Cormac Delaney', roles: ['analyst'], timeZone: 'Europe/Dublin' },
 	{ email: 'inspector@bandproof.test', name: 'Rafael Quintero', roles: ['inspector'], timeZone: 'America/New_York' },
 	{ email: 'admin@bandproof.test', name: 'Priya Ramanathan', roles: ['admin'], timeZone: 'Europe/London' },
 ]
@@ -141,12 +144,18 @@ async function seedInto(db: Db, now: Date): Promise<{ seeded: boolean }> {
 		if (!outcome.ok) throw outcome.error
 		materialIds.set(material.code, outcome.value.id)
 	}
-	await seedLibraryAndSpecifications(db, {
+	const specificationIds = await seedLibraryAndSpecifications(db, {
 		now,
 		author,
 		reviewer: actorOf('reviewer@bandproof.test'),
 		approver: actorOf('approver@bandproof.test'),
 		materialIds,
+	})
+	await seedInstrumentsAndRuns(db, {
+		now,
+		admin: actorOf('admin@bandproof.test'),
+		analysts: [actorOf('analyst@bandproof.test'), actorOf('analyst2@bandproof.test')],
+		specifications: specificationIds,
 	})
 	return { seeded: true }
 }
@@ -171,7 +180,8 @@ const STANDARDS: Record<string, string> = {
 
 /**
  * The demo lab's library (synthetic spectra: two replicate references and one incoming-lot sample per
- * material) and four specifications in different states, built through the same services people use.
+ * material) and four specifications in different states, built through the same services people use. Returns the
+ * ids of the two effective specifications, which the demo's identity runs test against.
  */
 async function seedLibraryAndSpecifications(
 	db: Db,
@@ -449,4 +459,5 @@ async function seedLibraryAndSpecifications(
 			samplePreparation: 'One drop of the liquid on the diamond crystal; cover with the volatile-liquid cap.',
 		},
 	}))
+	return { paracetamol: paracetamol.specificationId, isopropylAlcohol: ipa.specificationId }
 }
