@@ -60,6 +60,10 @@ const VERDICT_LABEL: Record<string, { text: string; tone: 'good' | 'danger' | 'c
 	'not-specific': { text: 'Not specific', tone: 'danger' },
 }
 
+/** A band shift in cm⁻¹ with its sign; a shift that rounds to zero is shown without one. */
+const formatShift = (shift: number | null) =>
+	shift === null ? '—' : Math.abs(shift) < 0.05 ? '0.0' : `${shift > 0 ? '+' : '−'}${Math.abs(shift).toFixed(1)}`
+
 const fixed = (value: number | null | undefined, digits = 4) =>
 	value === null || value === undefined ? '—' : value.toFixed(digits)
 
@@ -168,22 +172,22 @@ export function ComparisonDetail({
 				<table className="w-full max-w-3xl text-sm">
 					<thead>
 						<tr className="border-rule border-b text-left">
-							<th scope="col" className="py-1 font-semibold">
+							<th scope="col" className="py-1 pr-4 font-semibold">
 								Expected (cm⁻¹)
 							</th>
-							<th scope="col" className="py-1 font-semibold">
+							<th scope="col" className="py-1 pr-4 font-semibold">
 								Observed
 							</th>
-							<th scope="col" className="py-1 font-semibold">
+							<th scope="col" className="py-1 pr-4 font-semibold">
 								Shift
 							</th>
-							<th scope="col" className="py-1 font-semibold">
+							<th scope="col" className="py-1 pr-4 font-semibold">
 								Tolerance
 							</th>
-							<th scope="col" className="py-1 font-semibold">
+							<th scope="col" className="py-1 pr-4 font-semibold">
 								Relative intensity (sample / reference)
 							</th>
-							<th scope="col" className="py-1 font-semibold">
+							<th scope="col" className="py-1 pr-4 font-semibold">
 								Result
 							</th>
 						</tr>
@@ -191,19 +195,19 @@ export function ComparisonDetail({
 					<tbody>
 						{result.bands.map((band) => (
 							<tr key={band.expected.position} className="border-rule border-b last:border-0">
-								<td className="py-1 tabular-nums">
+								<td className="py-1 pr-4 tabular-nums">
 									{band.expected.position}
 									{band.expected.required ? '' : ' (optional)'}
 									{band.expected.assignment ? (
 										<span className="text-ink-faint block text-xs">{band.expected.assignment}</span>
 									) : null}
 								</td>
-								<td className="py-1 tabular-nums">{band.observed === null ? 'not found' : band.observed.toFixed(1)}</td>
-								<td className="py-1 tabular-nums">
-									{band.shift === null ? '—' : `${band.shift > 0 ? '+' : ''}${band.shift.toFixed(1)}`}
+								<td className="py-1 pr-4 tabular-nums">
+									{band.observed === null ? 'not found' : band.observed.toFixed(1)}
 								</td>
-								<td className="py-1 tabular-nums">± {band.expected.tolerance.toFixed(1)}</td>
-								<td className="py-1 tabular-nums">
+								<td className="py-1 pr-4 tabular-nums">{formatShift(band.shift)}</td>
+								<td className="py-1 pr-4 tabular-nums">± {band.expected.tolerance.toFixed(1)}</td>
+								<td className="py-1 pr-4 tabular-nums">
 									{fixed(band.relativeIntensity.sample, 2)} / {fixed(band.relativeIntensity.reference, 2)}
 								</td>
 								<td className="py-1">
