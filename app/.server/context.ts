@@ -24,17 +24,32 @@ export async function resolveActor(request: Request): Promise<Actor | null> {
 }
 
 /**
- * Middleware body for every signed-in route: no session → the sign-in page (with a way back);
- * a read-only role sending anything but GET/HEAD → 403, whatever the action would have said.
+ * Signed-in routes (patterns as in app/routes.ts) whose action changes no record, so that read-only roles may post to
+ * them: checking a copy of a dossier against the system only reads, and records that it did, as a page view does.
+ * Each action still authorises its own permission.
  */
-export async function requireSignedIn(request: Request, context: Readonly<RouterContextProvider>): Promise<Actor> {
+export const READ_ONLY_ACTIONS: ReadonlySet<string> = new Set(['/verify'])
+
+/**
+ * Middleware body for every signed-in route: no session → the sign-in page (with a way back);
+ * a read-only role sending anything but GET/HEAD → 403, whatever the action would have said, unless the route's
+ * `pattern` is one of READ_ONLY_ACTIONS.
+ */
+export async function requireSignedIn(
+	request: Request,
+	context: Readonly<RouterContextProvider>,
+	pattern: string,
+): Promise<Actor> {
 	const actor = await resolveActor(request)
 	if (!actor) {
 		const url = new URL(request.url)
 		const back = url.pathname + url.search
 		throw redirect(`/sign-in?redirectTo=${encodeURIComponent(back)}`)
 	}
-	if (isReadOnly(actor) && request.method !== 'GET' && request.method !== 'HEAD') {
+	// NOTE: React Router joins the matched paths without a leading slash ('verify'); both spellings are accepted.
+	const route = `/${pattern.replace(/^\/+/, '')}`
+	const reads = request.method === 'GET' || request.method === 'HEAD' || READ_ONLY_ACTIONS.has(route)
+	if (isReadOnly(actor) && !reads) {
 		throw data({ message: 'Your access is read-only.' }, { status: 403 })
 	}
 	context.set(actorContext, actor)

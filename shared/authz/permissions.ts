@@ -38,7 +38,9 @@ const grants = {
 	'spec:edit': ['author'],
 	'spec-version:sign': ['reviewer', 'approver'],
 	'queue:read': ['author', 'reviewer', 'approver'],
-	'audit:read': ['admin', 'inspector', 'approver'],
+	// The whole trail is lab-internal (drafts, accounts, addresses). Inspectors read the extract of each version their
+	// grant covers, on its inspection page, and nothing once the grant has ended.
+	'audit:read': ['admin', 'approver'],
 	'inspection:read': ['inspector'],
 	'user:manage': ['admin'],
 	'grant:manage': ['admin'],

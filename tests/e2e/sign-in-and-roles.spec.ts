@@ -11,8 +11,9 @@ const NAVIGATION_BY_ROLE = {
 	},
 	'approver@bandproof.test': { sees: ['Materials', 'My queue', 'Audit trail'], hidden: ['Users and roles'] },
 	'inspector@bandproof.test': {
-		sees: ['Inspection', 'Audit trail'],
-		hidden: ['Materials', 'Users and roles', 'My queue'],
+		// The whole audit trail is lab-internal: an inspector reads the extract of each granted version instead.
+		sees: ['Inspection', 'Verify a copy'],
+		hidden: ['Materials', 'Users and roles', 'My queue', 'Audit trail'],
 	},
 	'admin@bandproof.test': {
 		sees: ['Materials', 'Audit trail', 'Users and roles', 'Outgoing mail'],

@@ -8,8 +8,8 @@ import { cn } from '#app/utils/misc.ts'
 import { type Actor, can, type Permission, ROLE_LABELS } from '#shared/authz/permissions.ts'
 
 export const middleware: Array<Route.MiddlewareFunction> = [
-	async ({ request, context }, next) => {
-		await requireSignedIn(request, context)
+	async ({ request, context, pattern }, next) => {
+		await requireSignedIn(request, context, pattern)
 		return next()
 	},
 ]

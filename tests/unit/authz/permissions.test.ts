@@ -15,6 +15,8 @@ const EXPECTED: Array<[Permission, Array<Role>]> = [
 	// Inspectors never read drafts: released versions reach them through access grants only (PRODUCT.md §2).
 	['spec:read', ['author', 'reviewer', 'approver', 'admin']],
 	['dossier:verify', ['author', 'reviewer', 'approver', 'inspector', 'admin']],
+	// The whole trail shows drafts, accounts and addresses: inspectors get per-version extracts through their grant.
+	['audit:read', ['approver', 'admin']],
 ]
 const ALL: Array<Role> = ['author', 'reviewer', 'approver', 'inspector', 'admin']
 
