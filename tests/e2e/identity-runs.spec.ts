@@ -83,3 +83,39 @@ test('an analyst records a five-container lot, signs it, and a second analyst ve
 	await expect(page.getByText('Identity confirmed')).toBeVisible()
 	await snapshot(page, 'run-lot-released')
 })
+
+test('a lot with a container of another material is flagged for investigation, and an expired instrument says what to do', async ({
+	page,
+}) => {
+	const lotNumber = `E2F-${Date.now().toString(36).toUpperCase()}`
+	await signIn(page, 'analyst@bandproof.test')
+	const reference = await referenceFileOf(page, 'QC-IR-0002')
+	const otherMaterial = await referenceFileOf(page, 'QC-IR-0001')
+	const files = [
+		{ source: reference, container: 1 },
+		{ source: otherMaterial, container: 2 },
+		{ source: reference, container: 3 },
+	].map(({ source, container }) => ({
+		name: `${lotNumber}-C0${container}.jdx`,
+		mimeType: 'chemical/x-jcamp-dx',
+		buffer: Buffer.from(replicateOfFile(source.bytes, source.name, (Date.now() % 100000) + 50 + container, 0.001)),
+	}))
+	await page.goto('/lots/new')
+	await choose(page, 'Specification', /QC-IR-0002/)
+	await page.getByLabel('Lot number').fill(lotNumber)
+	await page.getByLabel('Supplier').fill('Orwell Fine Synthesis')
+	await page.getByLabel('Number of containers').fill('3')
+	await choose(page, 'Instrument', /^IR-02/)
+	await page.getByLabel('Sample spectra, one per container').setInputFiles(files)
+	await page.getByRole('button', { name: 'Record and compare' }).click()
+	await expect(page.getByTestId('run-status')).toContainText('Flagged for investigation')
+	await expect(page.getByRole('region', { name: 'Investigation' })).toContainText('Container 2 of 3 does not clearly conform.')
+	const second = page.getByTestId('containers').getByRole('row').nth(2)
+	await expect(second).toContainText('Does not conform')
+	await snapshot(page, 'run-flagged')
+
+	await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Instruments' }).click()
+	await page.getByRole('link', { name: 'IR-01', exact: true }).click()
+	await expect(page.getByTestId('readiness-message')).toContainText(/expired on \d{4}-\d{2}-\d{2}\. Record a new check/)
+	await snapshot(page, 'instrument-expired')
+})

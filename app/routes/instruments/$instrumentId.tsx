@@ -71,7 +71,11 @@ export async function action({ request, context, params }: Route.ActionArgs) {
 
 const day = (date: Date | string) => new Date(date).toISOString().slice(0, 10)
 const signed = (value: number | null) =>
-	value === null ? '—' : `${value > 0 ? '+' : value < 0 ? '−' : '±'}${Math.abs(value).toFixed(1)}`
+	value !== null && Math.abs(value) < 0.05
+		? '0.0'
+		: value === null
+			? '—'
+			: `${value > 0 ? '+' : value < 0 ? '−' : '±'}${Math.abs(value).toFixed(1)}`
 
 export default function InstrumentPage({ loaderData, actionData }: Route.ComponentProps) {
 	const { instrument, readiness, checks, canCheck } = loaderData

@@ -157,8 +157,9 @@ export default function RunPage({ loaderData, actionData }: Route.ComponentProps
 					className="border-danger bg-danger-soft mb-6 max-w-4xl rounded-md border-l-4 px-4 py-3 text-sm"
 				>
 					<p className="font-semibold">
-						{notConforming.length} of {containers.length} {containers.length === 1 ? 'container does' : 'containers do'}{' '}
-						not clearly conform: containers {notConforming.map((row) => row.containerNumber).join(', ')}.
+						{notConforming.length === 1
+							? `Container ${notConforming[0]!.containerNumber} of ${containers.length} does not clearly conform.`
+							: `${notConforming.length} of ${containers.length} containers do not clearly conform: containers ${notConforming.map((row) => row.containerNumber).join(', ')}.`}
 					</p>
 					<p className="mt-1">
 						This run stays flagged. Follow your out-of-specification procedure: a retest is recorded as a new run linked
@@ -281,7 +282,7 @@ export default function RunPage({ loaderData, actionData }: Route.ComponentProps
 											{row.containerNumber}
 										</Link>
 									</td>
-									<td className="px-3 py-2">{row.fileName}</td>
+									<td className="px-3 py-2 whitespace-nowrap">{row.fileName}</td>
 									<td className="px-3 py-2">
 										<VerdictBadge verdict={row.verdict} />
 									</td>
@@ -297,7 +298,20 @@ export default function RunPage({ loaderData, actionData }: Route.ComponentProps
 									<td className="px-3 py-2 text-right tabular-nums">
 										{within} / {result.bands.length}
 									</td>
-									<td className="text-ink-soft px-3 py-2">{result.reasons.join(' ') || '—'}</td>
+									<td className="text-ink-soft max-w-md px-3 py-2">
+										{result.reasons.length === 0 ? (
+											'—'
+										) : (
+											<>
+												{result.reasons[0]}
+												{result.reasons.length > 1 ? (
+													<span className="block text-xs">
+														and {result.reasons.length - 1} more on the container's page
+													</span>
+												) : null}
+											</>
+										)}
+									</td>
 								</tr>
 							)
 						})}
