@@ -1,6 +1,10 @@
 import { Links, Meta, Outlet, Scripts, ScrollRestoration, data } from 'react-router'
 import type { Route } from './+types/root'
-import { requestGuardMiddleware, securityHeadersMiddleware } from '#app/.server/security/middleware.ts'
+import {
+	apiProblemMiddleware,
+	requestGuardMiddleware,
+	securityHeadersMiddleware,
+} from '#app/.server/security/middleware.ts'
 import { takeToast } from '#app/.server/toast.ts'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { ToastNotice } from '#app/components/toast-notice.tsx'
@@ -9,7 +13,11 @@ import './app.css'
 
 // Every request, pages, data requests and resource routes alike: security headers on the way out (outermost, so
 // refusals and error pages get them too), then the cross-site and body-size guards.
-export const middleware: Array<Route.MiddlewareFunction> = [securityHeadersMiddleware, requestGuardMiddleware]
+export const middleware: Array<Route.MiddlewareFunction> = [
+	securityHeadersMiddleware,
+	apiProblemMiddleware,
+	requestGuardMiddleware,
+]
 
 export async function loader({ request }: Route.LoaderArgs) {
 	const { toast, headers } = await takeToast(request)

@@ -1,49 +1,19 @@
 import { z } from 'zod'
 import { db } from '#app/.server/db/client.ts'
-import { resolveApiKey } from '#app/.server/services/api-keys.ts'
+import { ApiProblem, isProblemResponse, problemResponse, STATUS_TITLES } from '#app/.server/problem.ts'
+import {
+	type ApiLimitOutcome,
+	apiLimitMessage,
+	rateLimitHeaders,
+	takeApiRequest,
+} from '#app/.server/security/api-limits.ts'
+import { forwardedClientAddress } from '#app/.server/security/client-address.ts'
+import { markApiKeyUsed, resolveApiKey } from '#app/.server/services/api-keys.ts'
 import { type Actor, type ApiKeyScope, can, isReadOnly, type Permission } from '#shared/authz/permissions.ts'
 import { DomainError } from '#shared/errors.ts'
 
 /** Largest JSON request body the API reads (uploads have their own limit in app/.server/uploads.ts). */
 export const MAX_JSON_BODY_BYTES = 64 * 1024
-
-export const PROBLEM_CONTENT_TYPE = 'application/problem+json'
-
-const TITLES: Record<number, string> = {
-	400: 'Bad Request',
-	401: 'Unauthorized',
-	403: 'Forbidden',
-	404: 'Not Found',
-	409: 'Conflict',
-	413: 'Content Too Large',
-	415: 'Unsupported Media Type',
-	422: 'Unprocessable Content',
-	500: 'Internal Server Error',
-}
-
-/** An RFC 9457 problem; `type` stays 'about:blank', so `title` is the HTTP status phrase (RFC 9457 §4.2.1). */
-export class ApiProblem extends Error {
-	readonly status: number
-	readonly extensions: Record<string, unknown>
-	constructor(status: number, detail: string, extensions: Record<string, unknown> = {}) {
-		super(detail)
-		this.status = status
-		this.extensions = extensions
-	}
-}
-
-export function problemResponse(
-	status: number,
-	detail: string,
-	extensions: Record<string, unknown> = {},
-	headers: HeadersInit = {},
-): Response {
-	const body = { type: 'about:blank', title: TITLES[status] ?? 'Error', status, detail, ...extensions }
-	const merged = new Headers(headers)
-	merged.set('Content-Type', PROBLEM_CONTENT_TYPE)
-	merged.set('Cache-Control', 'no-store')
-	return new Response(JSON.stringify(body), { status, headers: merged })
-}
 
 function messageOf(payload: unknown, fallback: string): string {
 	if (typeof payload === 'string') return payload
@@ -61,11 +31,14 @@ async function toProblem(thrown: unknown): Promise<Response> {
 	if (thrown instanceof DomainError) return problemResponse(thrown.status, thrown.message)
 	if (isThrownData(thrown)) {
 		const status = thrown.init?.status ?? 500
-		return problemResponse(status, messageOf(thrown.data, TITLES[status] ?? 'Error'))
+		return problemResponse(status, messageOf(thrown.data, STATUS_TITLES[status] ?? 'Error'))
 	}
 	if (thrown instanceof Response) {
-		if (thrown.headers.get('Content-Type')?.startsWith(PROBLEM_CONTENT_TYPE)) return thrown
-		return problemResponse(thrown.status, (await thrown.text().catch(() => '')) || (TITLES[thrown.status] ?? 'Error'))
+		if (isProblemResponse(thrown)) return thrown
+		return problemResponse(
+			thrown.status,
+			(await thrown.text().catch(() => '')) || (STATUS_TITLES[thrown.status] ?? 'Error'),
+		)
 	}
 	console.error('API request failed', thrown)
 	return problemResponse(500, 'The server failed to answer this request; nothing was changed by the failure.')
@@ -99,15 +72,50 @@ const REFUSALS = {
 	deactivated: 'The account that owns this API key is deactivated.',
 } as const
 
+/**
+ * The key's owner and scopes, after counting the request against the key's rate limit, or against the client
+ * address when there is no valid key (app/.server/security/api-limits.ts). Refusals throw: 429 before 401, so a
+ * client over its limit learns nothing more. The counted outcome is left in `counted` for the RateLimit headers.
+ */
 async function authenticate(
 	request: Request,
 	now: Date,
+	counted: Counted,
 ): Promise<{ actor: Actor; scopes: ReadonlyArray<ApiKeyScope> }> {
 	const token = bearerToken(request)
-	if (!token) throw new ApiProblem(401, 'Send an API key as "Authorization: Bearer <token>".')
-	const resolved = await resolveApiKey(db, token, now)
+	const resolved = token ? await resolveApiKey(db, token) : null
+	const subject = resolved?.status === 'ok' ? { keyId: resolved.keyId } : addressSubject(request)
+	if (subject) {
+		const outcome = takeApiRequest(subject, now.getTime())
+		counted.outcome = outcome
+		if (!outcome.decision.allowed)
+			throw new ApiProblem(429, apiLimitMessage({ ...outcome, decision: outcome.decision }))
+	}
+	if (!resolved) throw new ApiProblem(401, 'Send an API key as "Authorization: Bearer <token>".')
 	if (resolved.status !== 'ok') throw new ApiProblem(401, REFUSALS[resolved.status])
+	await markApiKeyUsed(db, resolved.keyId, now)
 	return resolved
+}
+
+/** The rate-limit count of one request, filled in by `authenticate`. */
+type Counted = { outcome: ApiLimitOutcome | null }
+
+function addressSubject(request: Request): { address: string } | null {
+	const address = forwardedClientAddress(request.headers)
+	return address ? { address } : null
+}
+
+/** Sets headers on a handler's answer; copies a response whose headers are frozen. */
+function withHeaders(response: Response, headers: Array<[string, string]>): Response {
+	if (headers.length === 0) return response
+	try {
+		for (const [name, value] of headers) response.headers.set(name, value)
+		return response
+	} catch {
+		const copy = new Response(response.body, response)
+		for (const [name, value] of headers) copy.headers.set(name, value)
+		return copy
+	}
 }
 
 async function readJson(request: Request): Promise<unknown> {
@@ -162,40 +170,53 @@ export function apiRoute<Q extends z.ZodType = z.ZodUndefined, B extends z.ZodTy
 	handler: (input: ApiHandlerInput<Q, B>) => Promise<Response>,
 ) {
 	return async ({ request, params }: { request: Request; params: Record<string, string | undefined> }) => {
+		const counted: Counted = { outcome: null }
+		let response: Response
 		try {
-			const now = new Date()
-			const { actor, scopes } = await authenticate(request, now)
-			if (!scopes.includes(options.scope)) throw new ApiProblem(403, `This API key lacks the "${options.scope}" scope.`)
-			if (isReadOnly(actor) && request.method !== 'GET' && request.method !== 'HEAD')
-				throw new ApiProblem(403, 'Your access is read-only.')
-			const permitted = can(actor, options.permission)
-			const byGrant = !permitted && options.inspectorsByGrant === true && can(actor, 'inspection:read')
-			if (!permitted && !byGrant) throw new ApiProblem(403, `Your roles do not allow this (${options.permission}).`)
-			let query: unknown = undefined
-			if (options.query) {
-				const parsed = options.query.safeParse(Object.fromEntries(new URL(request.url).searchParams))
-				if (!parsed.success) throw validationProblem(400, 'query string', parsed.error)
-				query = parsed.data
-			}
-			let body: unknown = undefined
-			if (options.body) {
-				const parsed = options.body.safeParse(await readJson(request))
-				if (!parsed.success) throw validationProblem(422, 'request body', parsed.error)
-				body = parsed.data
-			}
-			return await handler({
-				request,
-				params,
-				actor,
-				byGrant,
-				query: query as z.output<Q>,
-				body: body as z.output<B>,
-				now,
-			})
+			response = await handle(options, handler, request, params, counted)
 		} catch (thrown) {
-			return toProblem(thrown)
+			response = await toProblem(thrown)
 		}
+		return withHeaders(response, counted.outcome ? rateLimitHeaders(counted.outcome) : [])
 	}
+}
+
+async function handle<Q extends z.ZodType, B extends z.ZodType>(
+	options: ApiRouteOptions<Q, B>,
+	handler: (input: ApiHandlerInput<Q, B>) => Promise<Response>,
+	request: Request,
+	params: Record<string, string | undefined>,
+	counted: Counted,
+): Promise<Response> {
+	const now = new Date()
+	const { actor, scopes } = await authenticate(request, now, counted)
+	if (!scopes.includes(options.scope)) throw new ApiProblem(403, `This API key lacks the "${options.scope}" scope.`)
+	if (isReadOnly(actor) && request.method !== 'GET' && request.method !== 'HEAD')
+		throw new ApiProblem(403, 'Your access is read-only.')
+	const permitted = can(actor, options.permission)
+	const byGrant = !permitted && options.inspectorsByGrant === true && can(actor, 'inspection:read')
+	if (!permitted && !byGrant) throw new ApiProblem(403, `Your roles do not allow this (${options.permission}).`)
+	let query: unknown = undefined
+	if (options.query) {
+		const parsed = options.query.safeParse(Object.fromEntries(new URL(request.url).searchParams))
+		if (!parsed.success) throw validationProblem(400, 'query string', parsed.error)
+		query = parsed.data
+	}
+	let body: unknown = undefined
+	if (options.body) {
+		const parsed = options.body.safeParse(await readJson(request))
+		if (!parsed.success) throw validationProblem(422, 'request body', parsed.error)
+		body = parsed.data
+	}
+	return await handler({
+		request,
+		params,
+		actor,
+		byGrant,
+		query: query as z.output<Q>,
+		body: body as z.output<B>,
+		now,
+	})
 }
 
 /** A path parameter that must be a UUID: anything else cannot name a record, so it is a 404. */

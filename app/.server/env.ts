@@ -16,6 +16,15 @@ const EnvSchema = z.object({
 	LOCKOUT_THRESHOLD: z.coerce.number().int().min(1).max(100).default(5),
 	/** Minutes an account stays locked (an admin can unlock sooner). */
 	LOCKOUT_MINUTES: z.coerce.number().int().min(1).default(30),
+	/**
+	 * Requests to /api/v1 allowed per API key in any window of API_RATE_LIMIT_WINDOW_SECONDS: 120 a minute is two a
+	 * second, plenty for a lab's scripts (common practice, no source). The load benchmark raises it.
+	 */
+	API_RATE_LIMIT_PER_KEY: z.coerce.number().int().min(1).max(1_000_000_000).default(120),
+	/** Requests to /api/v1 without a valid key allowed per client address in the same window. */
+	API_RATE_LIMIT_PER_ADDRESS: z.coerce.number().int().min(1).max(1_000_000_000).default(30),
+	/** The sliding window of both API limits, in seconds. */
+	API_RATE_LIMIT_WINDOW_SECONDS: z.coerce.number().int().min(1).max(86_400).default(60),
 })
 
 export type Env = z.infer<typeof EnvSchema>

@@ -1,5 +1,6 @@
 import { z } from 'zod'
-import { MAX_JSON_BODY_BYTES, PROBLEM_CONTENT_TYPE } from '#app/.server/api.ts'
+import { MAX_JSON_BODY_BYTES } from '#app/.server/api.ts'
+import { PROBLEM_CONTENT_TYPE } from '#app/.server/problem.ts'
 import {
 	CompareRequestSchema,
 	CompareResultSchema,
@@ -138,7 +139,11 @@ const ERROR_DESCRIPTIONS: Record<number, string> = {
 	413: 'The request body is too large',
 	415: 'The request body is not JSON',
 	422: 'The request body is not valid, or the file could not be read',
+	429: 'Too many requests for this key (or, without a valid key, from this address); see Retry-After and RateLimit',
 }
+
+/** Answered by every operation: the per-key and per-address rate limits of app/.server/security/api-limits.ts. */
+const EVERY_OPERATION_ERRORS = [429]
 
 function toSchema(schema: z.ZodType, io: 'input' | 'output'): JsonSchema {
 	const { $schema: _ignored, ...rest } = z.toJSONSchema(schema, { target: 'draft-2020-12', io, unrepresentable: 'any' })
@@ -187,7 +192,7 @@ function operationObject(operation: Operation) {
 					: { [success.mediaType]: { schema: { type: 'string', contentMediaType: success.mediaType } } },
 		},
 	}
-	for (const status of operation.errors) {
+	for (const status of [...operation.errors, ...EVERY_OPERATION_ERRORS]) {
 		responses[status] = {
 			description: ERROR_DESCRIPTIONS[status] ?? 'Error',
 			content: { [PROBLEM_CONTENT_TYPE]: { schema: ref('Problem') } },
@@ -209,6 +214,23 @@ function operationObject(operation: Operation) {
 function multipartProperties(schema: z.ZodObject): Record<string, unknown> {
 	const properties = toSchema(schema, 'input').properties as Record<string, JsonSchema>
 	return { ...properties, file: { ...properties.file, type: 'string', contentMediaType: 'application/octet-stream' } }
+}
+
+/**
+ * The methods a path under /api/v1 answers (GET brings HEAD, RFC 9110 §9.3.2), from the operations above, or null
+ * when no operation has that path: for the Allow field of a 405 (RFC 9110 §15.5.6).
+ */
+export function allowedApiMethods(pathname: string): Array<string> | null {
+	const path = pathname.slice('/api/v1'.length).replace(/\/+$/, '')
+	const methods = new Set<string>()
+	if (path === '/openapi.json') methods.add('GET')
+	for (const operation of OPERATIONS) {
+		const pattern = new RegExp(`^${operation.path.replace(/\{\w+\}/g, '[^/]+').replaceAll('.', '\\.')}$`)
+		if (pattern.test(path)) methods.add(operation.method.toUpperCase())
+	}
+	if (methods.size === 0) return null
+	if (methods.has('GET')) methods.add('HEAD')
+	return ['GET', 'HEAD', 'POST'].filter((method) => methods.has(method))
 }
 
 /** The OpenAPI 3.1 document of /api/v1, built from the same zod schemas the routes parse with. */

@@ -183,3 +183,73 @@ test('[SEC-E2E-003] the 11th sign-in attempt within a minute from one address, o
 	await expect(page.getByRole('alert')).toContainText('Too many sign-in attempts')
 	await snapshot(page, 'sign-in-rate-limited')
 })
+
+/** An RFC 9457 problem (§3.1 members, §6.1 media type) with the status expected, carrying the security headers. */
+async function expectProblem(response: APIResponse, status: number): Promise<string> {
+	expect(response.status()).toBe(status)
+	expect(response.headers()['content-type']).toBe('application/problem+json')
+	expectSecurityHeaders(response)
+	const problem = (await response.json()) as { type: string; title: string; status: number; detail: string }
+	expect(problem).toMatchObject({ type: 'about:blank', status, title: expect.any(String), detail: expect.any(String) })
+	return problem.detail
+}
+
+test('[SEC-E2E-004] every refusal under /api/v1 is application/problem+json: guards, unknown paths, methods and rate limits', async ({
+	page,
+	baseURL,
+}) => {
+	const compare = `/api/v1/specifications/${crypto.randomUUID()}/compare`
+	// Not an HTML page for an unknown API path, nor for a method the resource does not answer (with Allow, RFC 9110 §15.5.6).
+	expect(await expectProblem(await page.request.get('/api/v1/no-such-thing'), 404)).toContain('openapi.json')
+	const post = await page.request.post('/api/v1/materials', { data: {} })
+	await expectProblem(post, 405)
+	expect(post.headers()['allow']).toBe('GET, HEAD')
+
+	// The root guard: a cookie-bearing post from another site, and a body over 1 MB.
+	await signIn(page, 'author@bandproof.test')
+	const crossSite = await page.request.post(compare, { data: {}, headers: { Origin: 'https://attacker.example' } })
+	expect(await expectProblem(crossSite, 403)).toContain('another site')
+	const huge = await page.request.post(compare, {
+		data: { sampleSpectrumId: 'x'.repeat(1024 * 1024) },
+		headers: { Origin: baseURL! },
+	})
+	expect(await expectProblem(huge, 413)).toContain('larger than 1 MB')
+
+	// A key made in the settings, used by a script: its answers carry RateLimit; a text body is 415.
+	await page.goto('/settings/api-keys')
+	await page.getByLabel('Name').fill('E2E problem script')
+	await page.getByRole('checkbox', { name: /write/ }).check()
+	await page.getByRole('button', { name: 'Create key' }).click()
+	const token = (await page.getByTestId('new-api-key').textContent())!.trim()
+	const script = await page.context().browser()!.newContext({ baseURL })
+	try {
+		const auth = { Authorization: `Bearer ${token}` }
+		const listed = await script.request.get('/api/v1/materials', { headers: auth })
+		expect(listed.status()).toBe(200)
+		expect(listed.headers()['ratelimit-policy']).toMatch(/^"per-key";q=\d+;w=\d+$/)
+		const textBody = await script.request.post(compare, {
+			headers: { ...auth, 'Content-Type': 'text/plain' },
+			data: 'not json',
+		})
+		await expectProblem(textBody, 415)
+
+		// Without a valid key, one address (X-Forwarded-For, from the reverse proxy) gets API_RATE_LIMIT_PER_ADDRESS
+		// answers (401), then 429 with Retry-After in delay-seconds (RFC 6585 §4; RFC 9110 §10.2.3).
+		const address = `198.51.100.${Math.floor(Math.random() * 200) + 20}` // TEST-NET-2 (RFC 5737)
+		const anonymous = () => script.request.get('/api/v1/materials', { headers: { 'X-Forwarded-For': address } })
+		const first = await anonymous()
+		await expectProblem(first, 401)
+		const quota = Number(/;q=(\d+);/.exec(first.headers()['ratelimit-policy'] ?? '')?.[1])
+		expect(quota).toBeGreaterThan(0)
+		for (let n = 2; n <= quota; n++) expect((await anonymous()).status()).toBe(401)
+		const limited = await anonymous()
+		expect(await expectProblem(limited, 429)).toContain('Too many requests')
+		expect(limited.headers()['retry-after']).toMatch(/^\d+$/)
+		// The key's own window is separate.
+		expect(
+			(await script.request.get('/api/v1/materials', { headers: { ...auth, 'X-Forwarded-For': address } })).status(),
+		).toBe(200)
+	} finally {
+		await script.close()
+	}
+})

@@ -4,7 +4,12 @@ import { expect, test } from 'vitest'
 import { db } from '#app/.server/db/client.ts'
 import { users } from '#app/.server/db/schema/auth.ts'
 import { documentPolicy } from '#app/.server/security/headers.ts'
-import { nonceContext, requestGuardMiddleware, securityHeadersMiddleware } from '#app/.server/security/middleware.ts'
+import {
+	apiProblemMiddleware,
+	nonceContext,
+	requestGuardMiddleware,
+	securityHeadersMiddleware,
+} from '#app/.server/security/middleware.ts'
 import { action as signInAction } from '#app/routes/_public/sign-in.tsx'
 import { auditActionsFor, makeActor, TEST_PASSWORD } from '#tests/support/factories.ts'
 
@@ -121,4 +126,107 @@ test('[SEC-104] an oversized form is refused with 413 before the action reads it
 		data: { message: expect.stringContaining('larger than 1 MB') },
 		init: { status: 413 },
 	})
+})
+
+/** An RFC 9457 problem (§3.1 members, §6.1 media type) with the status expected. */
+async function expectProblem(response: Response, status: number): Promise<string> {
+	expect(response.status).toBe(status)
+	expect(response.headers.get('Content-Type')).toBe('application/problem+json')
+	const problem = (await response.json()) as { type: string; title: string; status: number; detail: string }
+	expect(problem).toMatchObject({ type: 'about:blank', status, title: expect.any(String), detail: expect.any(String) })
+	return problem.detail
+}
+
+/** Runs the guard as the root does, returning what it answers or throws (React Router sends a thrown Response as is). */
+async function guard(request: Request, next: () => Promise<Response>): Promise<Response> {
+	const args = { request, context: new RouterContextProvider(), params: {}, url: new URL(request.url), pattern: '/' }
+	try {
+		return await requestGuardMiddleware(args, next)
+	} catch (thrown) {
+		if (thrown instanceof Response) return thrown
+		throw thrown
+	}
+}
+
+test('[SEC-105] under /api/v1 the guard refuses as application/problem+json: 403 cross-site, 413 too large, 411 no length', async () => {
+	let reached = false
+	const next = async () => {
+		reached = true
+		return new Response('{}', { headers: { 'Content-Type': 'application/json' } })
+	}
+	const compare = `http://localhost:3999/api/v1/specifications/${crypto.randomUUID()}/compare`
+	const crossSite = new Request(compare, {
+		method: 'POST',
+		body: '{}',
+		headers: {
+			Origin: 'https://attacker.example',
+			Cookie: 'bandproof.session_token=x',
+			'Content-Type': 'application/json',
+		},
+	})
+	expect(await expectProblem(await guard(crossSite, next), 403)).toContain('another site')
+
+	const body = JSON.stringify({ sampleSpectrumId: 'x'.repeat(1024 * 1024) })
+	const tooLarge = new Request(compare, {
+		method: 'POST',
+		body,
+		headers: { 'Content-Type': 'application/json', 'Content-Length': String(body.length) },
+	})
+	expect(await expectProblem(await guard(tooLarge, next), 413)).toContain('request body is larger than 1 MB')
+
+	const unknownLength = new Request(compare, {
+		method: 'POST',
+		body: '{}',
+		headers: { 'Content-Type': 'application/json', 'Transfer-Encoding': 'chunked' },
+	})
+	await expectProblem(await guard(unknownLength, next), 411)
+	expect(reached).toBe(false)
+
+	// The same refusal elsewhere stays the error page's message (React Router's `data()`), not a problem.
+	const page = new Request('http://localhost:3999/sign-out', {
+		method: 'POST',
+		headers: { Origin: 'https://attacker.example', Cookie: 'bandproof.session_token=x' },
+	})
+	await expect(guard(page, next)).rejects.toMatchObject({
+		data: { message: expect.any(String) },
+		init: { status: 403 },
+	})
+})
+
+test('[SEC-106] under /api/v1 any other error answer becomes a problem with its status: the HTML 404 page, a 405 with Allow', async () => {
+	const args = (request: Request) => ({
+		request,
+		context: new RouterContextProvider(),
+		params: {},
+		url: new URL(request.url),
+		pattern: '/',
+	})
+	const htmlNotFound = async () =>
+		new Response('<!DOCTYPE html><title>Not found</title>', {
+			status: 404,
+			headers: { 'Content-Type': 'text/html; charset=utf-8' },
+		})
+	const unknown = new Request('http://localhost:3999/api/v1/no-such-thing')
+	const notFound = await apiProblemMiddleware(args(unknown), htmlNotFound)
+	expect(await expectProblem(notFound, 404)).toContain('/api/v1/openapi.json')
+
+	// React Router answers a POST to a resource route without an action with 405 (as JSON naming the route file);
+	// RFC 9110 §15.5.6: a 405 MUST carry Allow with the methods the resource supports, and GET brings HEAD (§9.3.2).
+	const methodNotAllowed = async () =>
+		Response.json({ message: 'routes/api/v1/materials has no action' }, { status: 405 })
+	const post = new Request('http://localhost:3999/api/v1/materials', { method: 'POST' })
+	const refused = await apiProblemMiddleware(args(post), methodNotAllowed)
+	expect(refused.headers.get('Allow')).toBe('GET, HEAD')
+	expect(await expectProblem(refused, 405)).not.toContain('routes/')
+	const compare = new Request(`http://localhost:3999/api/v1/specifications/${crypto.randomUUID()}/compare`)
+	expect((await apiProblemMiddleware(args(compare), methodNotAllowed)).headers.get('Allow')).toBe('POST')
+
+	// Problems and successes pass untouched; paths outside the API keep their HTML page.
+	const problem = new Response('{"status":401}', {
+		status: 401,
+		headers: { 'Content-Type': 'application/problem+json' },
+	})
+	expect(await apiProblemMiddleware(args(post), async () => problem)).toBe(problem)
+	const page = await apiProblemMiddleware(args(new Request('http://localhost:3999/no-such-page')), htmlNotFound)
+	expect(page.headers.get('Content-Type')).toContain('text/html')
 })

@@ -1,4 +1,4 @@
-import { and, desc, eq, inArray, isNull } from 'drizzle-orm'
+import { and, arrayContains, desc, eq, inArray, isNull, not, or, type SQL } from 'drizzle-orm'
 import type { Db } from '#app/.server/db/client.ts'
 import { materials } from '#app/.server/db/schema/materials.ts'
 import { redlines, signatures, specifications, specVersions } from '#app/.server/db/schema/specifications.ts'
@@ -30,6 +30,15 @@ const TASK_ORDER: Record<QueueItem['task'], number> = {
  * of duties is applied here too: nobody is offered to sign a version they edited or already signed.
  */
 export async function listQueue(db: Db, actor: Actor): Promise<Array<QueueItem>> {
+	// Only the versions that can become a task for this person are read (the loop below decides which do): drafts
+	// they edited, if they may edit, and versions in review they did not edit, if they may sign. Every page's layout
+	// counts the queue, so it must not read every open version of a large library.
+	const editedByActor = or(eq(specVersions.authorId, actor.id), arrayContains(specVersions.editorIds, [actor.id]))
+	const candidates: Array<SQL> = []
+	if (can(actor, 'spec:edit')) candidates.push(and(eq(specVersions.state, 'draft'), editedByActor)!)
+	if (can(actor, 'spec-version:sign') && (actor.roles.includes('reviewer') || actor.roles.includes('approver')))
+		candidates.push(and(eq(specVersions.state, 'in_review'), not(editedByActor!))!)
+	if (candidates.length === 0) return []
 	const rows = await db
 		.select({
 			versionId: specVersions.id,
@@ -48,7 +57,7 @@ export async function listQueue(db: Db, actor: Actor): Promise<Array<QueueItem>>
 		.from(specVersions)
 		.innerJoin(specifications, eq(specifications.id, specVersions.specificationId))
 		.innerJoin(materials, eq(materials.id, specifications.materialId))
-		.where(inArray(specVersions.state, ['draft', 'in_review']))
+		.where(or(...candidates))
 		.orderBy(desc(specVersions.updatedAt))
 	if (rows.length === 0) return []
 	const ids = rows.map((row) => row.versionId)

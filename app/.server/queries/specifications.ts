@@ -1,4 +1,4 @@
-import { aliasedTable, and, asc, count, desc, eq, ilike, or, sql, type SQL } from 'drizzle-orm'
+import { aliasedTable, and, asc, count, desc, eq, exists, ilike, or, sql, type SQL } from 'drizzle-orm'
 import { z } from 'zod'
 import type { Db } from '#app/.server/db/client.ts'
 import { users } from '#app/.server/db/schema/auth.ts'
@@ -17,17 +17,28 @@ export const SpecificationListQuerySchema = z.object({
 export type SpecificationListQuery = z.infer<typeof SpecificationListQuerySchema>
 export const SPECIFICATION_PAGE_SIZE = 25
 
-/** Specifications with their latest version, filtered by that version's state, the material and the owner. */
+/**
+ * Specifications with their latest version, filtered by that version's state, the material and the owner; one page
+ * of SPECIFICATION_PAGE_SIZE in document-number order.
+ *
+ * Built to stay cheap with tens of thousands of specifications: the page walks the document-number index and fetches
+ * each row's latest version through a LATERAL join on the (specification, version number) unique index, so only the
+ * rows shown (and, with a state filter, the ones skipped) are looked at, never every version in the library. The
+ * total counts specifications without looking at versions unless the state is filtered, which is exact because a
+ * specification is created together with its first version and versions are never deleted.
+ */
 export async function listSpecifications(db: Db, query: SpecificationListQuery) {
 	const latest = db
 		.select({
-			specificationId: specVersions.specificationId,
-			versionId: sql<string>`(array_agg(${specVersions.id} order by ${specVersions.versionNumber} desc))[1]`.as(
-				'version_id',
-			),
+			id: specVersions.id,
+			versionNumber: specVersions.versionNumber,
+			state: specVersions.state,
+			updatedAt: specVersions.updatedAt,
 		})
 		.from(specVersions)
-		.groupBy(specVersions.specificationId)
+		.where(eq(specVersions.specificationId, specifications.id))
+		.orderBy(desc(specVersions.versionNumber))
+		.limit(1)
 		.as('latest')
 	const filters: Array<SQL> = []
 	if (query.q) {
@@ -40,11 +51,10 @@ export async function listSpecifications(db: Db, query: SpecificationListQuery) 
 		)
 		if (match) filters.push(match)
 	}
-	if (query.state) filters.push(eq(specVersions.state, query.state))
 	if (query.materialId) filters.push(eq(specifications.materialId, query.materialId))
 	if (query.ownerId) filters.push(eq(specifications.ownerId, query.ownerId))
-	const where = filters.length ? and(...filters) : undefined
-	const base = () =>
+	const where = (state: boolean) => and(...filters, ...(state && query.state ? [eq(latest.state, query.state)] : []))
+	const [rows, totals, owners] = await Promise.all([
 		db
 			.select({
 				id: specifications.id,
@@ -53,33 +63,42 @@ export async function listSpecifications(db: Db, query: SpecificationListQuery) 
 				materialCode: materials.code,
 				materialName: materials.name,
 				ownerName: users.name,
-				versionId: specVersions.id,
-				versionNumber: specVersions.versionNumber,
-				state: specVersions.state,
-				updatedAt: specVersions.updatedAt,
+				versionId: latest.id,
+				versionNumber: latest.versionNumber,
+				state: latest.state,
+				updatedAt: latest.updatedAt,
 			})
 			.from(specifications)
 			.innerJoin(materials, eq(materials.id, specifications.materialId))
 			.innerJoin(users, eq(users.id, specifications.ownerId))
-			.innerJoin(latest, eq(latest.specificationId, specifications.id))
-			.innerJoin(specVersions, eq(specVersions.id, latest.versionId))
-	const [rows, totals, owners] = await Promise.all([
-		base()
-			.where(where)
+			.innerJoinLateral(latest, sql`true`)
+			.where(where(true))
 			.orderBy(asc(specifications.documentNumber))
 			.limit(SPECIFICATION_PAGE_SIZE)
 			.offset((query.page - 1) * SPECIFICATION_PAGE_SIZE),
+		query.state
+			? db
+					.select({ total: count() })
+					.from(specifications)
+					.innerJoin(materials, eq(materials.id, specifications.materialId))
+					.innerJoinLateral(latest, sql`true`)
+					.where(where(true))
+			: db
+					.select({ total: count() })
+					.from(specifications)
+					.innerJoin(materials, eq(materials.id, specifications.materialId))
+					.where(where(false)),
 		db
-			.select({ total: count() })
-			.from(specifications)
-			.innerJoin(materials, eq(materials.id, specifications.materialId))
-			.innerJoin(latest, eq(latest.specificationId, specifications.id))
-			.innerJoin(specVersions, eq(specVersions.id, latest.versionId))
-			.where(where),
-		db
-			.selectDistinct({ id: users.id, name: users.name })
-			.from(specifications)
-			.innerJoin(users, eq(users.id, specifications.ownerId))
+			.select({ id: users.id, name: users.name })
+			.from(users)
+			.where(
+				exists(
+					db
+						.select({ one: sql`1` })
+						.from(specifications)
+						.where(eq(specifications.ownerId, users.id)),
+				),
+			)
 			.orderBy(asc(users.name)),
 	])
 	const total = totals[0]?.total ?? 0

@@ -1,3 +1,5 @@
+import { isApiPath } from '#app/.server/problem.ts'
+
 /**
  * A cap on request bodies, so no action reads an unbounded amount into memory.
  *
@@ -52,6 +54,12 @@ export function decideBodySize(input: BodyInput, maxBytes = MAX_BODY_BYTES): Bod
 		}
 	}
 	if (length > maxBytes) {
+		if (isApiPath(input.pathname))
+			return {
+				ok: false,
+				status: 413,
+				message: `The request body is larger than ${formatBytes(maxBytes)}, the most Bandproof reads; nothing was changed.`,
+			}
 		return {
 			ok: false,
 			status: 413,

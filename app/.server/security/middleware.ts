@@ -1,6 +1,8 @@
 import { randomBytes } from 'node:crypto'
 import { createContext, data, type MiddlewareFunction } from 'react-router'
 import { env } from '#app/.server/env.ts'
+import { allowedApiMethods } from '#app/.server/openapi.ts'
+import { isApiPath, isProblemResponse, problemResponse, STATUS_TITLES } from '#app/.server/problem.ts'
 import { decideBodySize } from '#app/.server/security/body-limit.ts'
 import { securityHeaders } from '#app/.server/security/headers.ts'
 import { allowedOrigins, decideCrossSite } from '#app/.server/security/origin.ts'
@@ -40,7 +42,8 @@ export async function securityHeadersMiddleware(
 
 /**
  * Refuses, before any loader or action runs: a cross-site request that would change something (403), and a body
- * larger than the app reads (413) or of unknown length (411).
+ * larger than the app reads (413) or of unknown length (411). Under /api/v1 the refusal is application/problem+json
+ * (RFC 9457), as every API answer is; elsewhere it is the message for the error page.
  */
 export async function requestGuardMiddleware(
 	{ request }: MiddlewareArgs[0],
@@ -55,7 +58,7 @@ export async function requestGuardMiddleware(
 		fetchSite: request.headers.get('Sec-Fetch-Site'),
 		allowed: allowedOrigins(request.url, env().BETTER_AUTH_URL),
 	})
-	if (!crossSite.ok) throw data({ message: crossSite.message }, { status: 403 })
+	if (!crossSite.ok) throw refusal(url, 403, crossSite.message)
 	const body = decideBodySize({
 		method: request.method,
 		pathname: url.pathname,
@@ -65,9 +68,58 @@ export async function requestGuardMiddleware(
 	})
 	if (!body.ok) {
 		await discardBody(request, DRAIN_LIMIT_BYTES)
-		throw data({ message: body.message }, { status: body.status })
+		throw refusal(url, body.status, body.message)
 	}
 	return next()
+}
+
+function refusal(url: URL, status: number, message: string) {
+	return isApiPath(url.pathname) ? problemResponse(status, message) : data({ message }, { status })
+}
+
+/**
+ * Under /api/v1, turns any error answer that is not already a problem into application/problem+json (RFC 9457) with
+ * the same status: an unknown API path (otherwise the app's HTML 404 page), a method the resource does not answer
+ * (React Router's 405), and anything else that did not come through `apiRoute()`. Registered between the header
+ * middleware and `requestGuardMiddleware`; other paths pass untouched.
+ */
+export async function apiProblemMiddleware({ request }: MiddlewareArgs[0], next: MiddlewareArgs[1]): Promise<Response> {
+	const pathname = new URL(request.url).pathname
+	if (!isApiPath(pathname)) return next()
+	let response: Response
+	try {
+		response = await next()
+	} catch (thrown) {
+		if (!(thrown instanceof Response)) throw thrown
+		response = thrown
+	}
+	if (response.status < 400 || isProblemResponse(response)) return response
+	const detail = await apiErrorDetail(request, response)
+	const keep: Array<[string, string]> = []
+	for (const name of ['Allow', 'Retry-After', 'WWW-Authenticate']) {
+		const value = response.headers.get(name)
+		if (value) keep.push([name, value])
+	}
+	const allowed = response.status === 405 && !response.headers.has('Allow') ? allowedApiMethods(pathname) : null
+	if (allowed) keep.push(['Allow', allowed.join(', ')])
+	return problemResponse(response.status, detail, {}, keep)
+}
+
+async function apiErrorDetail(request: Request, response: Response): Promise<string> {
+	switch (response.status) {
+		case 404:
+			return 'There is no API resource at this address. The paths of the API are listed in /api/v1/openapi.json.'
+		case 405:
+			return `This API resource does not answer ${request.method} requests. See /api/v1/openapi.json.`
+		default: {
+			// A `data({ message })` refusal from shared code arrives as JSON; HTML and stack traces are never passed on.
+			if (response.status < 500 && response.headers.get('Content-Type')?.includes('application/json')) {
+				const payload = (await response.json().catch(() => null)) as { message?: unknown } | null
+				if (typeof payload?.message === 'string') return payload.message
+			}
+			return STATUS_TITLES[response.status] ?? 'The request failed.'
+		}
+	}
 }
 
 /**

@@ -1,5 +1,5 @@
 import { createHash, randomBytes } from 'node:crypto'
-import { and, asc, desc, eq, isNull } from 'drizzle-orm'
+import { and, asc, desc, eq, isNull, lt, or } from 'drizzle-orm'
 import type { Db } from '#app/.server/db/client.ts'
 import { apiKeys } from '#app/.server/db/schema/api-keys.ts'
 import { users } from '#app/.server/db/schema/auth.ts'
@@ -109,8 +109,8 @@ export type ApiKeyResolution =
 	| { status: 'ok'; actor: Actor; scopes: ReadonlyArray<ApiKeyScope>; keyId: string }
 	| { status: 'unknown' | 'revoked' | 'deactivated' }
 
-/** Resolves a presented token to its owner as the same Actor the app uses, and notes the key's last use. */
-export async function resolveApiKey(db: Db, token: string, now: Date): Promise<ApiKeyResolution> {
+/** Resolves a presented token to its owner as the same Actor the app uses. Reads only: see `markApiKeyUsed`. */
+export async function resolveApiKey(db: Db, token: string): Promise<ApiKeyResolution> {
 	const [row] = await db
 		.select({
 			keyId: apiKeys.id,
@@ -132,8 +132,23 @@ export async function resolveApiKey(db: Db, token: string, now: Date): Promise<A
 		.from(userRoles)
 		.where(eq(userRoles.userId, row.userId))
 		.orderBy(asc(userRoles.role))
-	await db.update(apiKeys).set({ lastUsedAt: now }).where(eq(apiKeys.id, row.keyId))
 	const actor: Actor = { id: row.userId, name: row.name, email: row.email, roles: roles.map((entry) => entry.role) }
 	const scopes = row.scopes.filter((scope): scope is ApiKeyScope => scope === 'read' || scope === 'write')
 	return { status: 'ok', actor, scopes, keyId: row.keyId }
+}
+
+/** "Last used" is kept to the minute: a busy script then writes once a minute, not once a request. */
+export const LAST_USED_PRECISION_MS = 60_000
+
+/** Notes the key's last use (after its request passed the rate limit); a no-op within a minute of the last note. */
+export async function markApiKeyUsed(db: Db, keyId: string, now: Date): Promise<void> {
+	await db
+		.update(apiKeys)
+		.set({ lastUsedAt: now })
+		.where(
+			and(
+				eq(apiKeys.id, keyId),
+				or(isNull(apiKeys.lastUsedAt), lt(apiKeys.lastUsedAt, new Date(now.getTime() - LAST_USED_PRECISION_MS))),
+			),
+		)
 }

@@ -1,4 +1,5 @@
-import { ApiProblem, apiRoute, notFound, uuidParam } from '#app/.server/api.ts'
+import { ApiProblem } from '#app/.server/problem.ts'
+import { apiRoute, notFound, uuidParam } from '#app/.server/api.ts'
 import { db } from '#app/.server/db/client.ts'
 import { getEffectiveVersion, getSpecificationWithVersions } from '#app/.server/queries/api.ts'
 import { loadSpectrum } from '#app/.server/services/spectra.ts'

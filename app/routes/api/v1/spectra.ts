@@ -1,5 +1,6 @@
 import { z } from 'zod'
-import { ApiProblem, apiRoute } from '#app/.server/api.ts'
+import { ApiProblem } from '#app/.server/problem.ts'
+import { apiRoute } from '#app/.server/api.ts'
 import { db } from '#app/.server/db/client.ts'
 import { storeSpectrumFile } from '#app/.server/services/spectra.ts'
 import { parseUpload } from '#app/.server/uploads.ts'
