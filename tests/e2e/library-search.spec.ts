@@ -12,11 +12,15 @@ const documentMark = (page: Page) => page.evaluate(() => (window as unknown as {
 
 /** Counts what the browser asks the server from now on: full documents, and React Router data requests for a path. */
 function watchRequests(page: Page, pathname: string) {
-	const seen = { documents: 0, data: 0 }
+	const seen = { documents: 0, data: 0, routes: new Set<string>() }
 	page.on('request', (request) => {
 		const url = new URL(request.url())
 		if (request.resourceType() === 'document') seen.documents += 1
-		else if (url.pathname === `${pathname}.data`) seen.data += 1
+		else if (url.pathname === `${pathname}.data`) {
+			seen.data += 1
+			// React Router names the loaders it asks for; without the parameter it asks every route of the page.
+			for (const id of (url.searchParams.get('_routes') ?? 'every route').split(',')) seen.routes.add(id)
+		}
 	})
 	return seen
 }
@@ -45,6 +49,9 @@ test('[SRCH-010] typing in the specification search filters the list without a p
 	// Debounced: five keystrokes, one request (two at most if the machine stalls between keys).
 	expect(seen.data).toBeGreaterThanOrEqual(1)
 	expect(seen.data).toBeLessThanOrEqual(2)
+	// The list's loader answers a search (and the root's, which only reads a pending toast); the sidebar's, the
+	// layout's, is not asked again.
+	expect([...seen.routes].sort()).toEqual(['root', 'routes/specifications/index'])
 	await expect(page.getByRole('status').filter({ hasText: '1 specification found' })).toBeAttached()
 	await snapshot(page, 'specifications-live-search')
 

@@ -27,7 +27,8 @@ export async function loader({ context }: Route.LoaderArgs) {
 
 /**
  * Typing in a live search changes only the query string of the page shown: nothing in the sidebar depends on it,
- * so the layout's loader is not asked again for each pause in typing. Form posts and other pages still revalidate.
+ * so the layout's loader is not asked again for each pause in typing. Form posts, other pages and an explicit
+ * revalidation (same address) still revalidate.
  */
 export function shouldRevalidate({
 	currentUrl,
@@ -35,7 +36,10 @@ export function shouldRevalidate({
 	formMethod,
 	defaultShouldRevalidate,
 }: ShouldRevalidateFunctionArgs) {
-	const sameListQuery = (formMethod === undefined || formMethod === 'GET') && currentUrl.pathname === nextUrl.pathname
+	const sameListQuery =
+		(formMethod === undefined || formMethod === 'GET') &&
+		currentUrl.pathname === nextUrl.pathname &&
+		currentUrl.search !== nextUrl.search
 	return sameListQuery ? false : defaultShouldRevalidate
 }
 
