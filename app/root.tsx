@@ -1,3 +1,5 @@
+// First: configures zod in the browser before any module below builds a schema (see the module).
+import '#app/utils/zod-in-the-browser.ts'
 import { Links, Meta, Outlet, Scripts, ScrollRestoration, data } from 'react-router'
 import type { Route } from './+types/root'
 import {

@@ -19,9 +19,6 @@ export default [
 		route('versions/:versionId/dossier.pdf', 'routes/api/v1/versions.$versionId.dossier.ts'),
 		route('spectra', 'routes/api/v1/spectra.ts'),
 	]),
-	// Outside the _app layout on purpose: its middleware refuses every POST from read-only roles, and inspectors
-	// may manage their own read-only keys. The page resolves the session itself (see its middleware).
-	route('settings/api-keys', 'routes/settings/api-keys.tsx'),
 
 	layout('routes/_app/layout.tsx', [
 		index('routes/_app/overview.tsx'),
@@ -63,8 +60,11 @@ export default [
 			route(':runId/containers/:containerNumber', 'routes/runs/container.tsx'),
 		]),
 		route('queue', 'routes/queue.tsx'),
+		route('queue/count', 'routes/queue.count.ts'),
 		route('verify', 'routes/verify.tsx'),
 		route('api-docs', 'routes/api-docs.tsx'),
+		// Inspectors may POST here (their own read-only keys): see ROUTE_POLICIES in app/.server/context.ts.
+		route('settings/api-keys', 'routes/settings/api-keys.tsx'),
 		...prefix('inspection', [
 			index('routes/inspection/index.tsx'),
 			route(':versionId', 'routes/inspection/$versionId.tsx'),

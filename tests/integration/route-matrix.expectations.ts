@@ -86,7 +86,7 @@ GET    /specifications/:specId/versions/:versionId/band-suggestions login     20
 GET    /specifications/:specId/versions/:versionId/dossier/pdf      login     200    200      200      403       200
 GET    /queue                                                       login     200    200      200      403       403
 GET    /verify                                                      login     200    200      200      200       200
-// Checking a copy only reads, so the read-only inspector may post it (READ_ONLY_ACTIONS in app/.server/context.ts).
+// Checking a copy only reads, so the read-only inspector may post it (ROUTE_POLICIES in app/.server/context.ts).
 POST   /verify                                                      login     400    400      400      400       400
 GET    /api-docs                                                    login     200    200      200      200       200
 GET    /inspection                                                  login     403    403      403      200       403

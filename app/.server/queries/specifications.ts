@@ -6,9 +6,10 @@ import { materials } from '#app/.server/db/schema/materials.ts'
 import { evidence, specifications, specVersions, VERSION_STATES } from '#app/.server/db/schema/specifications.ts'
 import { spectra } from '#app/.server/db/schema/spectra.ts'
 import { parseContent } from '#app/.server/services/specifications.ts'
+import { containsPattern, SearchTextSchema } from '#shared/search/text-search.ts'
 
 export const SpecificationListQuerySchema = z.object({
-	q: z.string().trim().max(100).optional().catch(undefined),
+	q: SearchTextSchema,
 	state: z.enum(VERSION_STATES).optional().catch(undefined),
 	materialId: z.string().uuid().optional().catch(undefined),
 	ownerId: z.string().max(64).optional().catch(undefined),
@@ -18,8 +19,9 @@ export type SpecificationListQuery = z.infer<typeof SpecificationListQuerySchema
 export const SPECIFICATION_PAGE_SIZE = 25
 
 /**
- * Specifications with their latest version, filtered by that version's state, the material and the owner; one page
- * of SPECIFICATION_PAGE_SIZE in document-number order.
+ * Specifications with their latest version, filtered by that version's state, the material and the owner; `q`
+ * matches the document number, title, material code, name or CAS RN. One page of SPECIFICATION_PAGE_SIZE in
+ * document-number order.
  *
  * Built to stay cheap with tens of thousands of specifications: the page walks the document-number index and fetches
  * each row's latest version through a LATERAL join on the (specification, version number) unique index, so only the
@@ -42,12 +44,13 @@ export async function listSpecifications(db: Db, query: SpecificationListQuery) 
 		.as('latest')
 	const filters: Array<SQL> = []
 	if (query.q) {
-		const pattern = `%${query.q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`
+		const pattern = containsPattern(query.q)
 		const match = or(
 			ilike(specifications.documentNumber, pattern),
 			ilike(specifications.title, pattern),
 			ilike(materials.name, pattern),
 			ilike(materials.code, pattern),
+			ilike(materials.casNumber, pattern),
 		)
 		if (match) filters.push(match)
 	}

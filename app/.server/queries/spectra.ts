@@ -4,10 +4,11 @@ import type { Db } from '#app/.server/db/client.ts'
 import { users } from '#app/.server/db/schema/auth.ts'
 import { materials } from '#app/.server/db/schema/materials.ts'
 import { SPECTRUM_PURPOSES, spectra } from '#app/.server/db/schema/spectra.ts'
+import { containsPattern, SearchTextSchema } from '#shared/search/text-search.ts'
 import type { ImportWarning } from '#shared/spectra/types.ts'
 
 export const SpectrumListQuerySchema = z.object({
-	q: z.string().trim().max(100).optional().catch(undefined),
+	q: SearchTextSchema,
 	purpose: z.enum(SPECTRUM_PURPOSES).optional().catch(undefined),
 	materialId: z.string().uuid().optional().catch(undefined),
 	page: z.coerce.number().int().min(1).max(100_000).catch(1),
@@ -15,21 +16,18 @@ export const SpectrumListQuerySchema = z.object({
 export type SpectrumListQuery = z.infer<typeof SpectrumListQuerySchema>
 export const SPECTRUM_PAGE_SIZE = 25
 
-function escapeLike(text: string): string {
-	return text.replace(/[\\%_]/g, (c) => `\\${c}`)
-}
-
-/** One page of the library, newest first. */
+/** One page of the library, newest first; `q` matches file, title, lot, material code, name or CAS RN. */
 export async function listSpectra(db: Db, query: SpectrumListQuery) {
 	const filters: Array<SQL> = []
 	if (query.q) {
-		const pattern = `%${escapeLike(query.q)}%`
+		const pattern = containsPattern(query.q)
 		const match = or(
 			ilike(spectra.fileName, pattern),
 			ilike(spectra.title, pattern),
 			ilike(spectra.referenceStandardLot, pattern),
 			ilike(materials.name, pattern),
 			ilike(materials.code, pattern),
+			ilike(materials.casNumber, pattern),
 		)
 		if (match) filters.push(match)
 	}

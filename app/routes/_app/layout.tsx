@@ -1,4 +1,5 @@
-import { Form, NavLink, Outlet } from 'react-router'
+import { useEffect, useRef } from 'react'
+import { Form, NavLink, Outlet, type ShouldRevalidateFunctionArgs, useFetcher } from 'react-router'
 import type { Route } from './+types/layout'
 import { actorContext, authorize, requireSignedIn } from '#app/.server/context.ts'
 import { db } from '#app/.server/db/client.ts'
@@ -6,6 +7,7 @@ import { listQueue } from '#app/.server/queries/queue.ts'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { cn } from '#app/utils/misc.ts'
 import { type Actor, can, type Permission, ROLE_LABELS } from '#shared/authz/permissions.ts'
+import { newerQueueCount, type QueueCount, QueueCountSchema } from '#shared/queue/queue-count.ts'
 
 export const middleware: Array<Route.MiddlewareFunction> = [
 	async ({ request, context, pattern }, next) => {
@@ -16,8 +18,29 @@ export const middleware: Array<Route.MiddlewareFunction> = [
 
 export async function loader({ context }: Route.LoaderArgs) {
 	const actor = authorize(context, 'workspace:enter')
-	const queueCount = can(actor, 'queue:read') ? (await listQueue(db, actor)).length : 0
-	return { actor: context.get(actorContext) ?? actor, queueCount }
+	const queue: QueueCount = {
+		count: can(actor, 'queue:read') ? (await listQueue(db, actor)).length : 0,
+		at: new Date().toISOString(),
+	}
+	return { actor: context.get(actorContext) ?? actor, queue }
+}
+
+/**
+ * Typing in a live search changes only the query string of the page shown: nothing in the sidebar depends on it,
+ * so the layout's loader is not asked again for each pause in typing. Form posts, other pages and an explicit
+ * revalidation (same address) still revalidate.
+ */
+export function shouldRevalidate({
+	currentUrl,
+	nextUrl,
+	formMethod,
+	defaultShouldRevalidate,
+}: ShouldRevalidateFunctionArgs) {
+	const sameListQuery =
+		(formMethod === undefined || formMethod === 'GET') &&
+		currentUrl.pathname === nextUrl.pathname &&
+		currentUrl.search !== nextUrl.search
+	return sameListQuery ? false : defaultShouldRevalidate
 }
 
 type NavItem = { to: string; label: string; permission: Permission; end?: boolean }
@@ -74,7 +97,8 @@ function visibleNavigation(actor: Actor): Array<NavGroup> {
 }
 
 export default function SignedInLayout({ loaderData }: Route.ComponentProps) {
-	const { actor, queueCount } = loaderData
+	const { actor } = loaderData
+	const queueCount = useLiveQueueCount(loaderData.queue, can(actor, 'queue:read'))
 	return (
 		<div className="flex min-h-screen">
 			<a
@@ -138,6 +162,46 @@ export default function SignedInLayout({ loaderData }: Route.ComponentProps) {
 			</main>
 		</div>
 	)
+}
+
+/** How often the sidebar asks for the queue count while the tab is visible. */
+const QUEUE_POLL_MS = 60_000
+/** Focus and visibility often change together: one request for both. */
+const QUEUE_REFRESH_GAP_MS = 5_000
+
+/**
+ * The queue count from the layout loader, kept fresh by a fetcher on /queue/count: every QUEUE_POLL_MS while the
+ * tab is visible, and when the window gets focus or the tab becomes visible again. Whichever count the server made
+ * last wins, so a revalidation after a workflow step is never overwritten by an older poll.
+ */
+function useLiveQueueCount(initial: QueueCount, enabled: boolean): number {
+	const fetcher = useFetcher({ key: 'queue-count' })
+	const lastAsked = useRef(0)
+	const { load, state } = fetcher
+	const busy = useRef(false)
+	busy.current = state !== 'idle'
+
+	useEffect(() => {
+		if (!enabled) return
+		const refresh = (force: boolean) => {
+			if (document.visibilityState !== 'visible' || busy.current) return
+			if (!force && Date.now() - lastAsked.current < QUEUE_REFRESH_GAP_MS) return
+			lastAsked.current = Date.now()
+			void load('/queue/count')
+		}
+		const onFocus = () => refresh(false)
+		const timer = setInterval(() => refresh(true), QUEUE_POLL_MS)
+		window.addEventListener('focus', onFocus)
+		document.addEventListener('visibilitychange', onFocus)
+		return () => {
+			clearInterval(timer)
+			window.removeEventListener('focus', onFocus)
+			document.removeEventListener('visibilitychange', onFocus)
+		}
+	}, [enabled, load])
+
+	const fetched = QueueCountSchema.safeParse(fetcher.data)
+	return newerQueueCount(initial, fetched.success ? fetched.data : null).count
 }
 
 function UserPanel({ actor }: { actor: Actor }) {

@@ -1,14 +1,17 @@
 import { parseWithZod } from '@conform-to/zod/v4'
-import { data, Form, href, Link, redirect, useNavigation } from 'react-router'
+import { useEffect, useRef } from 'react'
+import { data, Form, href, Link, useNavigation } from 'react-router'
 import { z } from 'zod'
 import type { Route } from './+types/api-keys'
-import { actorContext, authorize, resolveActor } from '#app/.server/context.ts'
+import { authorize } from '#app/.server/context.ts'
 import { db } from '#app/.server/db/client.ts'
 import { createApiKey, listApiKeys, revokeApiKey } from '#app/.server/services/api-keys.ts'
 import { redirectWithToast } from '#app/.server/toast.ts'
+import { CopyButton } from '#app/components/copy-button.tsx'
 import { FormErrors, inputClass } from '#app/components/forms.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { Button } from '#app/components/ui/button.tsx'
+import { EmptyState } from '#app/components/ui/empty-state.tsx'
 import { ListTable } from '#app/components/ui/list-table.tsx'
 import { PageHeader } from '#app/components/ui/page-header.tsx'
 import { StatusBadge } from '#app/components/ui/status-badge.tsx'
@@ -24,17 +27,9 @@ const ApiKeyActionSchema = z.discriminatedUnion('intent', [
 	z.object({ intent: z.literal('revoke'), keyId: z.uuid() }),
 ])
 
-// This page lives outside the _app layout, whose middleware refuses every POST from read-only roles: an inspector
-// may still create and revoke their own read-only keys here. Everything else the layout does is done here.
-export const middleware: Array<Route.MiddlewareFunction> = [
-	async ({ request, context }, next) => {
-		const actor = await resolveActor(request)
-		if (!actor) throw redirect(`/sign-in?redirectTo=${encodeURIComponent('/settings/api-keys')}`)
-		context.set(actorContext, actor)
-		return next()
-	},
-]
-
+// Inside the signed-in layout. Its middleware refuses every POST from read-only accounts except here, where an
+// inspector may create and revoke their own keys (ROUTE_POLICIES in app/.server/context.ts); apiKeyScopesFor()
+// limits those keys to the read scope, and the service refuses anything wider.
 export async function loader({ context }: Route.LoaderArgs) {
 	const actor = authorize(context, 'api-key:manage')
 	return { keys: await listApiKeys(db, actor.id), allowedScopes: apiKeyScopesFor(actor) }
@@ -71,20 +66,25 @@ export async function action({ request, context }: Route.ActionArgs) {
 export default function ApiKeys({ loaderData, actionData }: Route.ComponentProps) {
 	const navigation = useNavigation()
 	const errors = actionData?.result?.error ?? {}
+	// Once a key is made, the form starts afresh: the name just used is not left there to be submitted twice.
+	const createForm = useRef<HTMLFormElement>(null)
+	const created = actionData?.created ?? null
+	useEffect(() => {
+		if (created) createForm.current?.reset()
+	}, [created])
 	return (
-		<div className="mx-auto max-w-4xl px-8 py-6">
-			<p className="mb-4 text-sm">
-				<Link to="/" className="text-accent underline-offset-4 hover:underline">
-					← Back to Bandproof
-				</Link>
-				{' · '}
-				<Link to={href('/api-docs')} className="text-accent underline-offset-4 hover:underline">
-					API reference
-				</Link>
-			</p>
+		<>
 			<PageHeader
 				title="API keys"
-				description="Personal keys for scripts and instruments calling /api/v1. A key acts as you, with your roles; its scopes can only narrow that. Revoke a key you no longer use."
+				description={
+					<>
+						Personal keys for scripts and instruments calling /api/v1 (see the{' '}
+						<Link to={href('/api-docs')} className="text-accent underline-offset-4 hover:underline">
+							API reference
+						</Link>
+						). A key acts as you, with your roles; its scopes can only narrow that. Revoke a key you no longer use.
+					</>
+				}
 			/>
 			{actionData?.created ? (
 				<section
@@ -96,40 +96,56 @@ export default function ApiKeys({ loaderData, actionData }: Route.ComponentProps
 						Key “{actionData.created.name}” created
 					</h2>
 					<p className="mt-1 text-sm">Copy it now: it is shown only this once and cannot be recovered.</p>
-					<code data-testid="new-api-key" className="bg-sheet mt-2 block rounded px-3 py-2 text-sm break-all">
-						{actionData.created.token}
-					</code>
+					<div className="mt-2 flex flex-wrap items-center gap-3">
+						<code
+							data-testid="new-api-key"
+							className="bg-sheet min-w-0 flex-1 rounded px-3 py-2 text-sm break-all select-all"
+						>
+							{actionData.created.token}
+						</code>
+						<CopyButton text={actionData.created.token} label="Copy key" />
+					</div>
 				</section>
 			) : null}
 			<FormErrors errors={errors[''] ?? undefined} />
-			<ListTable headers={['Name', 'Key', 'Scopes', 'Created', 'Last used', 'Status', '']}>
-				{loaderData.keys.map((key) => (
-					<tr key={key.id} className="border-rule border-b last:border-0" data-testid="api-key-row">
-						<td className="px-3 py-2">{key.name}</td>
-						<td className="px-3 py-2 font-mono text-xs">{key.prefix}…</td>
-						<td className="px-3 py-2">{key.scopes.join(', ')}</td>
-						<td className="px-3 py-2 tabular-nums">{formatUtc(key.createdAt)}</td>
-						<td className="px-3 py-2 tabular-nums">{key.lastUsedAt ? formatUtc(key.lastUsedAt) : 'never'}</td>
-						<td className="px-3 py-2">
-							<StatusBadge tone={key.revokedAt ? 'neutral' : 'good'}>
-								{key.revokedAt ? 'revoked' : 'active'}
-							</StatusBadge>
-						</td>
-						<td className="px-3 py-2">
-							{key.revokedAt ? null : (
-								<Form method="post">
-									<input type="hidden" name="intent" value="revoke" />
-									<input type="hidden" name="keyId" value={key.id} />
-									<Button type="submit" size="sm" variant="quiet">
-										Revoke <span className="sr-only">{key.name}</span>
-									</Button>
-								</Form>
-							)}
-						</td>
-					</tr>
-				))}
-			</ListTable>
-			<Form method="post" className="bg-sheet border-rule mt-6 max-w-xl space-y-4 rounded-lg border p-6">
+			{loaderData.keys.length === 0 ? (
+				<EmptyState title="You have no API keys yet">
+					Create one below for each script or instrument, so that you can revoke one without stopping the others.
+				</EmptyState>
+			) : (
+				<ListTable headers={['Name', 'Key', 'Scopes', 'Created', 'Last used', 'Status', '']}>
+					{loaderData.keys.map((key) => (
+						<tr key={key.id} className="border-rule border-b last:border-0" data-testid="api-key-row">
+							<td className="px-3 py-2">{key.name}</td>
+							<td className="px-3 py-2 font-mono text-xs">{key.prefix}…</td>
+							<td className="px-3 py-2">{key.scopes.join(', ')}</td>
+							<td className="px-3 py-2 tabular-nums">{formatUtc(key.createdAt)}</td>
+							<td className="px-3 py-2 tabular-nums">{key.lastUsedAt ? formatUtc(key.lastUsedAt) : 'never'}</td>
+							<td className="px-3 py-2">
+								<StatusBadge tone={key.revokedAt ? 'neutral' : 'good'}>
+									{key.revokedAt ? 'revoked' : 'active'}
+								</StatusBadge>
+							</td>
+							<td className="px-3 py-2">
+								{key.revokedAt ? null : (
+									<Form method="post">
+										<input type="hidden" name="intent" value="revoke" />
+										<input type="hidden" name="keyId" value={key.id} />
+										<Button type="submit" size="sm" variant="quiet">
+											Revoke <span className="sr-only">{key.name}</span>
+										</Button>
+									</Form>
+								)}
+							</td>
+						</tr>
+					))}
+				</ListTable>
+			)}
+			<Form
+				ref={createForm}
+				method="post"
+				className="bg-sheet border-rule mt-6 max-w-xl space-y-4 rounded-lg border p-6"
+			>
 				<h2 className="text-lg font-bold">Create a key</h2>
 				<input type="hidden" name="intent" value="create" />
 				<div>
@@ -167,7 +183,7 @@ export default function ApiKeys({ loaderData, actionData }: Route.ComponentProps
 					Create key
 				</Button>
 			</Form>
-		</div>
+		</>
 	)
 }
 

@@ -4,7 +4,7 @@ import { authorize } from '#app/.server/context.ts'
 import { db } from '#app/.server/db/client.ts'
 import { listSpecifications, SpecificationListQuerySchema } from '#app/.server/queries/specifications.ts'
 import { listMaterialChoices } from '#app/.server/queries/spectra.ts'
-import { FilterBar, materialOptions, SelectFilter, TextFilter } from '#app/components/list-filters.tsx'
+import { FilterBar, materialOptions, SearchFilter, SelectFilter } from '#app/components/list-filters.tsx'
 import { ListTable } from '#app/components/ui/list-table.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { buttonVariants } from '#app/components/ui/button.tsx'
@@ -38,14 +38,18 @@ export default function SpecificationList({ loaderData }: Route.ComponentProps) 
 					) : null
 				}
 			/>
-			<FilterBar clearTo="/specifications" filtered={filtered}>
-				<TextFilter
+			<FilterBar
+				clearTo="/specifications"
+				filtered={filtered}
+				live
+				resultSummary={`${total} ${total === 1 ? 'specification' : 'specifications'} found`}
+			>
+				<SearchFilter
 					id="spec-q"
-					name="q"
 					label="Search"
 					defaultValue={query.q}
-					placeholder="Number, title or material"
-					className="w-60"
+					placeholder="Number, title, material or CAS RN"
+					className="w-64"
 				/>
 				<SelectFilter
 					id="spec-state"
@@ -75,9 +79,17 @@ export default function SpecificationList({ loaderData }: Route.ComponentProps) 
 				/>
 			</FilterBar>
 			{rows.length === 0 ? (
-				<EmptyState title={filtered ? 'No specification matches these filters' : 'No specifications yet'}>
+				<EmptyState
+					title={
+						query.q
+							? `No specification matches “${query.q}”`
+							: filtered
+								? 'No specification matches these filters'
+								: 'No specifications yet'
+					}
+				>
 					{filtered
-						? 'Clear the filters to see every specification.'
+						? 'Check the spelling, try part of a document number, material code or CAS RN, or clear the filters to see every specification.'
 						: canCreate
 							? 'Start one for a registered material: you will draft its method, reference spectrum, band table and acceptance criteria.'
 							: 'Specifications drafted by authors will be listed here.'}

@@ -3,7 +3,7 @@ import type { Route } from './+types/index'
 import { authorize } from '#app/.server/context.ts'
 import { db } from '#app/.server/db/client.ts'
 import { listMaterialChoices, listSpectra, SpectrumListQuerySchema } from '#app/.server/queries/spectra.ts'
-import { FilterBar, materialOptions, SelectFilter, TextFilter } from '#app/components/list-filters.tsx'
+import { FilterBar, materialOptions, SearchFilter, SelectFilter } from '#app/components/list-filters.tsx'
 import { ListTable } from '#app/components/ui/list-table.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { buttonVariants } from '#app/components/ui/button.tsx'
@@ -37,13 +37,18 @@ export default function SpectraLibrary({ loaderData }: Route.ComponentProps) {
 					) : null
 				}
 			/>
-			<FilterBar clearTo="/spectra" filtered={filtered}>
-				<TextFilter
+			<FilterBar
+				clearTo="/spectra"
+				filtered={filtered}
+				live
+				resultSummary={`${total} ${total === 1 ? 'spectrum' : 'spectra'} found`}
+			>
+				<SearchFilter
 					id="spectra-q"
-					name="q"
 					label="Search"
 					defaultValue={query.q}
-					placeholder="File, title, lot or material"
+					placeholder="File, title, lot, material or CAS RN"
+					className="w-72"
 				/>
 				<SelectFilter
 					id="spectra-purpose"
@@ -63,9 +68,17 @@ export default function SpectraLibrary({ loaderData }: Route.ComponentProps) {
 				/>
 			</FilterBar>
 			{rows.length === 0 ? (
-				<EmptyState title={filtered ? 'No spectrum matches these filters' : 'The library is empty'}>
+				<EmptyState
+					title={
+						query.q
+							? `No spectrum matches “${query.q}”`
+							: filtered
+								? 'No spectrum matches these filters'
+								: 'The library is empty'
+					}
+				>
 					{filtered
-						? 'Clear the filters to see every spectrum.'
+						? 'Check the spelling, try part of a file name, material code or CAS RN, or clear the filters to see every spectrum.'
 						: canUpload
 							? 'Upload reference spectra of your materials to start: JCAMP-DX or XY text files.'
 							: 'Spectra uploaded by authors will be listed here.'}
