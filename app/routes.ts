@@ -47,6 +47,7 @@ export default [
 			route(':specId/versions/:versionId/band-suggestions', 'routes/specifications/band-suggestions.ts'),
 			route(':specId/versions/:versionId/dossier/:format', 'routes/specifications/dossier.ts'),
 		]),
+		route('runs/:runId/record.pdf', 'routes/runs/record.ts'),
 		route('queue', 'routes/queue.tsx'),
 		route('verify', 'routes/verify.tsx'),
 		route('api-docs', 'routes/api-docs.tsx'),

@@ -4,8 +4,8 @@ import { auditEvents } from '#app/.server/db/schema/audit.ts'
 import { dossiers } from '#app/.server/db/schema/dossiers.ts'
 import { materials } from '#app/.server/db/schema/materials.ts'
 import { evidence, signatures, specifications, specVersions } from '#app/.server/db/schema/specifications.ts'
-import type { DossierFormat } from '#app/.server/render/dossier.ts'
-import { renderDossierOffThread } from '#app/.server/render/render-pool.ts'
+import type { DocumentFormat } from '#app/.server/render/document.ts'
+import { renderOffThread } from '#app/.server/render/render-pool.ts'
 import { recordAudit } from '#app/.server/services/audit.ts'
 import { publicBaseUrl } from '#app/.server/services/notifications.ts'
 import { versionContentHash } from '#app/.server/services/spec-workflow.ts'
@@ -48,6 +48,14 @@ type SpecificityJson = {
 	margin: number | null
 	comparedWith: number
 	nearest: { fileName: string; materialName: string; correlation: number } | null
+}
+
+/** The organisation and site every controlled document names (BANDPROOF_ORGANISATION, BANDPROOF_SITE). */
+export function documentOrganisation(): { name: string; site: string } {
+	return {
+		name: process.env.BANDPROOF_ORGANISATION ?? 'Calder Vale Pharmaceuticals',
+		site: process.env.BANDPROOF_SITE ?? 'Incoming-materials QC laboratory',
+	}
 }
 
 /** Everything the dossier of one version shows, resolved to plain values. Pure reads; no clock (renderedAt is given). */
@@ -168,10 +176,7 @@ export async function buildDossierData(
 	// A copy issued to an inspector is for information: it carries the "issued to" line and is not a controlled copy.
 	const controlled = version.state === 'effective' && !input.inspectionLine
 	return {
-		organisation: {
-			name: process.env.BANDPROOF_ORGANISATION ?? 'Calder Vale Pharmaceuticals',
-			site: process.env.BANDPROOF_SITE ?? 'Incoming-materials QC laboratory',
-		},
+		organisation: documentOrganisation(),
 		document: {
 			number: specification.documentNumber,
 			title: specification.title,
@@ -269,7 +274,7 @@ export async function getDossier(
 	input: {
 		actor: Actor | null
 		versionId: string
-		format: DossierFormat
+		format: DocumentFormat
 		now: Date
 		ipAddress?: string | null
 		purpose: 'download' | 'preview' | 'seed'
@@ -311,7 +316,7 @@ export async function getDossier(
 			inspectionLine: input.inspectionLine ?? null,
 		})
 		if (!data) return null
-		const rendered = await renderDossierOffThread(data, { format: input.format, templateId: 'dossier' })
+		const rendered = await renderOffThread({ document: 'dossier', data, format: input.format, templateId: 'dossier' })
 		const template = rendered.template
 		if (stores) {
 			const [inserted] = await db
