@@ -14,11 +14,15 @@ import { expect, test } from 'vitest'
 import { actorContext } from '#app/.server/context.ts'
 import { db } from '#app/.server/db/client.ts'
 import { auditEvents } from '#app/.server/db/schema/audit.ts'
+import { dossiers } from '#app/.server/db/schema/dossiers.ts'
 import { getRun } from '#app/.server/queries/runs.ts'
+import { listDossierRecords } from '#app/.server/services/dossiers.ts'
 import { concludeInvestigation, recordIdentityRun, signIdentityRun } from '#app/.server/services/identity-runs.ts'
 import { recordInstrumentCheck, registerInstrument } from '#app/.server/services/instruments.ts'
 import { loader as recordLoader } from '#app/routes/runs/record.ts'
+import { loader as dossierLoader } from '#app/routes/specifications/dossier.ts'
 import type { Actor } from '#shared/authz/permissions.ts'
+import { identifyDossier } from '#shared/dossier/identify.ts'
 import { containerFiles, replicateOf } from '#tests/support/container-samples.ts'
 import { makeActor, makeSignedVersion } from '#tests/support/factories.ts'
 import { pdfPageTexts } from '#tests/support/pdf-text.ts'
@@ -93,6 +97,19 @@ async function download(actor: Actor, runId: string) {
 	const request = new Request(`http://localhost/runs/${runId}/record.pdf`)
 	const url = new URL(request.url)
 	const response = await recordLoader({ request, context, params: { runId }, url, pattern: '/runs/:runId/record.pdf' })
+	const bytes = new Uint8Array(await response.arrayBuffer())
+	return { response, bytes, pages: await pdfPageTexts(bytes) }
+}
+
+/** Downloads the version's dossier PDF through the route's loader; `query` e.g. '?runs=include'. */
+async function dossierPdf(actor: Actor, version: { specificationId: string; versionId: string }, query = '') {
+	const context = new RouterContextProvider()
+	context.set(actorContext, actor)
+	const path = `/specifications/${version.specificationId}/versions/${version.versionId}/dossier/pdf`
+	const request = new Request(`http://localhost${path}${query}`)
+	const url = new URL(request.url)
+	const params = { specId: version.specificationId, versionId: version.versionId, format: 'pdf' }
+	const response = await dossierLoader({ request, context, params, url, pattern: path })
 	const bytes = new Uint8Array(await response.arrayBuffer())
 	return { response, bytes, pages: await pdfPageTexts(bytes) }
 }
@@ -263,3 +280,70 @@ test('[RUN-103] the record is refused to roles without run:read and answers 404 
 	const downloads = await db.select().from(auditEvents).where(eq(auditEvents.action, 'identity-run.record-downloaded'))
 	expect(downloads).toHaveLength(0)
 })
+
+test('[RUN-104] the dossier with identity runs lists the verified runs against the version, is stored once per set of runs and served byte-identical; the plain dossier is untouched', async () => {
+	const s = await lab()
+	const first = await recordRun(s, [{ relPath: SAME_MEASUREMENT }, { relPath: REFERENCE, seed: 141 }])
+	await signIdentityRun(db, { actor: s.analyst, runId: first.runId, intent: 'sign-performed', now: new Date() })
+	await signIdentityRun(db, { actor: s.verifier, runId: first.runId, intent: 'verify', now: new Date() })
+	const flagged = await recordRun(s, [{ relPath: REFERENCE, seed: 142 }, { relPath: ISOMER }])
+	await signIdentityRun(db, { actor: s.analyst, runId: flagged.runId, intent: 'sign-performed', now: new Date() })
+	const firstRun = (await getRun(db, first.runId))!
+	const flaggedRun = (await getRun(db, flagged.runId))!
+
+	const plain = await dossierPdf(s.approver, s.version)
+	expect(plain.pages.join(' ')).not.toContain('Appendix A')
+	const withRuns = await dossierPdf(s.approver, s.version, '?runs=include')
+	expect(withRuns.response.headers.get('Content-Disposition')).toContain('-effective-with-runs.pdf')
+	const text = withRuns.pages.join(' ')
+	expect(text).toContain('1 verified run against this version, listed in Appendix A')
+	expect(text).toContain('Appendix A Identity runs against this version')
+	// The verified run, with its lowest stored correlation to 4 decimals; the run awaiting verification is left out.
+	const lowest = Math.min(...firstRun.containers.map((row) => row.correlation!))
+	expect(text).toContain(`${first.runNumber} ${firstRun.run.recordedAt.toISOString().slice(0, 10)} ${first.lotNumber}`)
+	expect(text).toContain(`Conforms ${fixed4(lowest)} ${s.verifier.name}`)
+	expect(text).toContain(`${firstRun.recordSha256.slice(0, 12)}…`)
+	expect(text).not.toContain(flagged.runNumber)
+	withRuns.pages.forEach((page, index) => expect(page).toContain(`Page ${index + 1} of ${withRuns.pages.length}`))
+
+	// A second request gets the same bytes (PRODUCT.md §6), and so does the plain dossier.
+	const again = await dossierPdf(s.reviewer, s.version, '?runs=include')
+	expect(Buffer.from(again.bytes).equals(Buffer.from(withRuns.bytes))).toBe(true)
+	const plainAgain = await dossierPdf(s.reviewer, s.version)
+	expect(Buffer.from(plainAgain.bytes).equals(Buffer.from(plain.bytes))).toBe(true)
+	expect(Buffer.from(plain.bytes).equals(Buffer.from(withRuns.bytes))).toBe(false)
+
+	// Verifying the flagged run changes the set: a new variant is stored, and the earlier copy stays verifiable.
+	await signIdentityRun(db, { actor: s.verifier, runId: flagged.runId, intent: 'verify', now: new Date() })
+	const grown = await dossierPdf(s.approver, s.version, '?runs=include')
+	const grownText = grown.pages.join(' ')
+	expect(Buffer.from(grown.bytes).equals(Buffer.from(withRuns.bytes))).toBe(false)
+	expect(grownText).toContain('2 verified runs against this version')
+	expect(grownText).toContain(first.runNumber)
+	expect(grownText).toContain(
+		`Flagged for investigation Container 2 not conforming ${fixed4(Math.min(...flaggedRun.containers.map((row) => row.correlation!)))}`,
+	)
+	expect(grownText.indexOf(first.runNumber)).toBeLessThan(grownText.indexOf(flagged.runNumber))
+	const rows = await db.select().from(dossiers).where(eq(dossiers.versionId, s.version.versionId))
+	expect(rows.map((row) => row.sha256).sort()).toEqual(
+		[plain, withRuns, grown].map((file) => file.response.headers.get('X-Content-SHA256')).sort(),
+	)
+	expect(rows.filter((row) => row.includedRunsSha256 === null)).toHaveLength(1)
+	for (const file of [withRuns, grown]) {
+		const hash = file.response.headers.get('X-Content-SHA256')!
+		expect(identifyDossier(await listDossierRecords(db, hash), hash)).toMatchObject({ status: 'match' })
+	}
+	const downloads = await db
+		.select()
+		.from(auditEvents)
+		.where(and(eq(auditEvents.entityId, s.version.versionId), eq(auditEvents.action, 'dossier.downloaded')))
+		.orderBy(auditEvents.id)
+	expect(downloads.map((event) => (event.after as { includedRuns?: number }).includedRuns ?? null)).toEqual([
+		null,
+		1,
+		1,
+		null,
+		2,
+	])
+	expect(await refusal(() => dossierPdf(s.approver, s.version, '?runs=all'))).toBe(400)
+}, 90_000)
