@@ -58,6 +58,7 @@ export default [
 			route(':runId', 'routes/runs/$runId.tsx'),
 			route(':runId/retest', 'routes/runs/retest.tsx'),
 			route(':runId/containers/:containerNumber', 'routes/runs/container.tsx'),
+			route(':runId/record.pdf', 'routes/runs/record.ts'),
 		]),
 		route('queue', 'routes/queue.tsx'),
 		route('queue/count', 'routes/queue.count.ts'),

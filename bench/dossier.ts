@@ -7,7 +7,8 @@
 import { readFileSync } from 'node:fs'
 import path from 'node:path'
 import type { DossierDataInput } from '#shared/dossier/model.ts'
-import { type DossierFormat, renderDossier } from '#app/.server/render/dossier.ts'
+import type { DocumentFormat } from '#app/.server/render/document.ts'
+import { renderDossier } from '#app/.server/render/dossier.ts'
 import { type DocumentTemplate, loadTemplate, templateDir } from '#app/.server/render/template.ts'
 
 type BenchMetric = { name: string; value: number; unit: string; ratio?: number; goal?: string }
@@ -41,7 +42,7 @@ function withEvidence(data: DossierDataInput, count: number): DossierDataInput {
 
 async function medianMs(
 	data: DossierDataInput,
-	format: DossierFormat,
+	format: DocumentFormat,
 	template: DocumentTemplate,
 	runs: number,
 ): Promise<number> {

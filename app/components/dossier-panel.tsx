@@ -4,9 +4,10 @@ import { Button, buttonVariants } from '#app/components/ui/button.tsx'
 
 /**
  * The version's dossier: a preview of the PDF in the page and both downloads. Signed versions get the stored,
- * byte-identical controlled copy; drafts are rendered on demand with a DRAFT mark on every page.
+ * byte-identical controlled copy; drafts are rendered on demand with a DRAFT mark on every page. Versions that
+ * identity runs test against (effective and later) also offer the PDF with the appendix of verified runs.
  */
-export function DossierPanel({ base, stored }: { base: string; stored: boolean }) {
+export function DossierPanel({ base, stored, withRuns }: { base: string; stored: boolean; withRuns: boolean }) {
 	const [preview, setPreview] = useState(false)
 	const [loading, setLoading] = useState(false)
 	return (
@@ -39,6 +40,11 @@ export function DossierPanel({ base, stored }: { base: string; stored: boolean }
 					<a href={`${base}/dossier/docx`} className={buttonVariants({ variant: 'secondary' })} download>
 						Download DOCX
 					</a>
+					{withRuns ? (
+						<a href={`${base}/dossier/pdf?runs=include`} className={buttonVariants({ variant: 'secondary' })} download>
+							Dossier with identity runs
+						</a>
+					) : null}
 					<Link to="/verify" className={buttonVariants({ variant: 'quiet' })}>
 						Verify a copy
 					</Link>

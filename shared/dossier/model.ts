@@ -125,6 +125,31 @@ export const AuditEntrySchema = z.object({
 	detail: Text(1000),
 })
 
+/**
+ * One verified identity run that tested against the version, as the dossier's appendix lists it. The run's full
+ * record is its own PDF (shared/runs/record-document.ts); the appendix names it by its record SHA-256.
+ */
+export const DossierRunSchema = z.object({
+	runNumber: Text(40).min(1),
+	lotNumber: Text(100).min(1),
+	supplier: Text(200).min(1),
+	containerCount: z.number().int().positive(),
+	instrumentCode: Text(40).min(1),
+	recordedAt: IsoDateTimeSchema,
+	outcome: z.enum(['conforms', 'flagged']),
+	investigationConclusion: z.enum(['confirmed', 'invalidated']).nullable(),
+	/** Lowest container correlation as stored, or null when no container had one. */
+	lowestCorrelation: z.number().min(-1).max(1).nullable(),
+	/** Numbers of the containers that did not give a clear 'conforms'. */
+	notConforming: z.array(z.number().int().positive()).max(500),
+	verifiedBy: Text(200).min(1),
+	verifiedAtUtc: IsoDateTimeSchema,
+	/** Run number of the flagged run this one retests, or null. */
+	retestOf: Text(40).nullable(),
+	recordSha256: Sha256Schema,
+})
+export type DossierRun = z.infer<typeof DossierRunSchema>
+
 export const DossierDataSchema = z.object({
 	organisation: z.object({ name: Text(200).min(1), site: Text(200).nullable().default(null) }),
 	document: z.object({
@@ -160,6 +185,11 @@ export const DossierDataSchema = z.object({
 		/** Site-specific words on how to verify, shown under the template's own wording. */
 		instructions: Text(2000),
 	}),
+	/**
+	 * The identity-runs appendix: null for the dossier without it; otherwise the verified runs that tested against
+	 * this version (possibly none), oldest first.
+	 */
+	identityRuns: z.array(DossierRunSchema).max(1000).nullable().default(null),
 	/** When the dossier was rendered, ISO 8601 with offset; given by the caller, never read from a clock. */
 	renderedAt: IsoDateTimeSchema,
 })

@@ -554,7 +554,11 @@ export function signatureManifestation(
 	}
 }
 
-function formatInZone(date: Date, timeZone: string): string {
+/**
+ * A signing time as the signer saw it: 'YYYY-MM-DD hh:mm:ss' in `timeZone` (IANA) with its abbreviation and the zone,
+ * e.g. '2025-03-14 10:42:07 CET (Europe/Paris)', or '… UTC'. Pure; used by every signature manifestation.
+ */
+export function formatInZone(date: Date, timeZone: string): string {
 	const parts = new Intl.DateTimeFormat('en-GB', {
 		timeZone,
 		year: 'numeric',

@@ -45,7 +45,7 @@ test('[DOS-101] an effective version’s dossier is rendered once and every down
 		format: 'pdf',
 		versionState: 'effective',
 		templateId: 'dossier',
-		templateVersion: '1.0.0',
+		templateVersion: '1.1.0',
 	})
 	// Every download is in the audit trail (21 CFR 11.10(e); PRODUCT.md §7).
 	const downloads = await db.select().from(auditEvents).where(eq(auditEvents.action, 'dossier.downloaded'))
@@ -74,7 +74,7 @@ test('[DOS-102] "verify a copy" names the document, version and template, and re
 			status: 'match',
 			versionNumber: 1,
 			format,
-			template: { id: 'dossier', version: '1.0.0' },
+			template: { id: 'dossier', version: '1.1.0' },
 		})
 		const changed = new Uint8Array(file.bytes)
 		const middle = Math.floor(changed.length / 2)

@@ -1,10 +1,10 @@
 /**
  * The block markup that templates produce, parsed into one layout that both renderers draw. The markup is a small,
- * strict XML subset (listed in templates/dossier/dossier.hbs); anything else is a template error. Figures are
- * resolved here from the dossier data, so renderers see only blocks.
+ * strict XML subset (listed in templates/dossier/dossier.hbs) shared by every controlled document (the dossier, the
+ * identity-run record); anything else is a template error. Figures are resolved while parsing, by the document
+ * type's own resolver over its data, so renderers see only blocks.
  */
-import type { DossierData } from '#shared/dossier/model.ts'
-import { FIGURE_COLORS, type FigureSpec, spectrumFigure } from '#app/.server/render/figure.ts'
+import type { FigureSpec } from '#app/.server/render/figure.ts'
 
 /** A piece of inline text; `field` marks a page number, the page count or a forced line break instead of text. */
 export type Run = { text: string; bold: boolean; italic: boolean; field: 'page' | 'pages' | 'break' | null }
@@ -191,42 +191,15 @@ const PARAGRAPH_STYLES = ['kicker', 'title', 'subtitle', 'body', 'small', 'capti
 const ALIGNS = ['left', 'right', 'center'] as const
 const TONES = ['caution', 'info', 'warning'] as const
 
-function figureBlock(node: Extract<Node, { type: 'element' }>, data: DossierData): Block {
-	const source = oneOf(attr(node, 'source'), ['reference', 'evidence'] as const, 'figure source')
-	const regions = data.body.criteria.exclusionRegions.map((region) => ({
-		from: region.from,
-		to: region.to,
-		label: region.label,
-	}))
+/**
+ * Draws a `<figure source="…">` of a document type from that type's data: `attr` reads the element's attributes
+ * (throwing when one is missing). Throws on a source the type does not know.
+ */
+export type FigureResolver = (source: string, attr: (name: string) => string) => FigureSpec
+
+function figureBlock(node: Extract<Node, { type: 'element' }>, figures: FigureResolver): Block {
 	const caption = inline(node)
-	const base = {
-		width: FIGURE_WIDTH,
-		height: FIGURE_HEIGHT,
-		xLabel: attr(node, 'x-label'),
-		yLabel: attr(node, 'y-label'),
-		regions,
-	}
-	if (source === 'reference') {
-		const spectrum = data.referenceSpectrum
-		if (spectrum === null) throw new Error('Template markup: a reference figure without a reference spectrum')
-		const figure = spectrumFigure({
-			...base,
-			series: [{ points: spectrum.points, color: FIGURE_COLORS.reference, width: 0.8, label: null }],
-			markers: spectrum.bands,
-		})
-		return { kind: 'figure', figure, caption, alt: plainText(caption) }
-	}
-	const index = Number(attr(node, 'index'))
-	const overlay = data.evidence[index]?.overlay
-	if (overlay === null || overlay === undefined) throw new Error(`Template markup: evidence ${index} has no overlay`)
-	const figure = spectrumFigure({
-		...base,
-		series: [
-			{ points: overlay.reference, color: FIGURE_COLORS.reference, width: 0.8, label: attr(node, 'reference-label') },
-			{ points: overlay.sample, color: FIGURE_COLORS.sample, width: 0.8, label: attr(node, 'sample-label') },
-		],
-		markers: [],
-	})
+	const figure = figures(attr(node, 'source'), (name) => attr(node, name))
 	return { kind: 'figure', figure, caption, alt: plainText(caption) }
 }
 
@@ -258,7 +231,7 @@ function tableBlock(node: Extract<Node, { type: 'element' }>): Block {
 	return { kind: 'table', widths: widths.map((w) => w / total), align, head, rows }
 }
 
-function block(node: Extract<Node, { type: 'element' }>, data: DossierData): Block {
+function block(node: Extract<Node, { type: 'element' }>, figures: FigureResolver): Block {
 	switch (node.name) {
 		case 'h1':
 		case 'h2':
@@ -288,7 +261,7 @@ function block(node: Extract<Node, { type: 'element' }>, data: DossierData): Blo
 				}),
 			}
 		case 'figure':
-			return figureBlock(node, data)
+			return figureBlock(node, figures)
 		case 'notice':
 			return {
 				kind: 'notice',
@@ -301,16 +274,20 @@ function block(node: Extract<Node, { type: 'element' }>, data: DossierData): Blo
 		case 'pagebreak':
 			return { kind: 'pagebreak' }
 		case 'keep':
-			return { kind: 'keep', blocks: elementsOf(node).map((child) => block(child, data)) }
+			return { kind: 'keep', blocks: elementsOf(node).map((child) => block(child, figures)) }
 		default:
 			throw new Error(`Template markup: unknown block <${node.name}>`)
 	}
 }
 
-/** Turns expanded template markup into the layout both renderers draw. Throws on any template error. */
-export function buildLayout(markup: string, data: DossierData): DocumentLayout {
+/**
+ * Turns expanded template markup into the layout both renderers draw. `root` names the document type's root element
+ * (`dossier`, `run-record`); `figures` draws its figures. Throws on any template error.
+ */
+export function buildLayout(markup: string, options: { root: string; figures: FigureResolver }): DocumentLayout {
 	const root = parseMarkup(markup)
-	if (root.type !== 'element' || root.name !== 'dossier') throw new Error('Template markup: the root must be <dossier>')
+	if (root.type !== 'element' || root.name !== options.root)
+		throw new Error(`Template markup: the root must be <${options.root}>`)
 	let meta: DocumentLayout['meta'] | null = null
 	let running: Running | null = null
 	const blocks: Array<Block> = []
@@ -333,7 +310,7 @@ export function buildLayout(markup: string, data: DossierData): DocumentLayout {
 				mark: mark === undefined ? null : plainText(inline(mark)) || null,
 			}
 		} else {
-			blocks.push(block(node, data))
+			blocks.push(block(node, options.figures))
 		}
 	}
 	if (meta === null || running === null) throw new Error('Template markup: <meta> and <running> are required')

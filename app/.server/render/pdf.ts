@@ -567,8 +567,9 @@ function block(writer: Writer, item: Block): void {
 			notice(writer, item.tone, item.title, item.runs)
 			break
 		case 'space':
-			// Space never starts a page, nor pushes what follows onto the next one.
-			if (!writer.atTop) writer.y = Math.min(writer.y + item.size, writer.bottom - 24)
+			// Space never starts a page, nor pushes what follows onto the next one. NOTE: near the page foot it shrinks
+			// to nothing, but never moves the cursor back up over what is already drawn.
+			if (!writer.atTop) writer.y = Math.max(writer.y, Math.min(writer.y + item.size, writer.bottom - 24))
 			break
 		case 'pagebreak':
 			if (!writer.atTop) writer.newPage()

@@ -1,9 +1,15 @@
 import path from 'node:path'
 import { Worker } from 'node:worker_threads'
-import type { DossierFormat, RenderedDossier } from '#app/.server/render/dossier.ts'
+import type { DocumentFormat, RenderedDocument } from '#app/.server/render/document.ts'
 import type { DossierDataInput } from '#shared/dossier/model.ts'
+import type { RunRecordDocumentInput } from '#shared/runs/record-document.ts'
 
-type Pending = { resolve: (value: RenderedDossier) => void; reject: (error: Error) => void }
+/** One document to draw: which kind, its data (validated in the worker) and its controlled template. */
+export type RenderJob = { format: DocumentFormat; templateId: string } & (
+	{ document: 'dossier'; data: DossierDataInput } | { document: 'run-record'; data: RunRecordDocumentInput }
+)
+
+type Pending = { resolve: (value: RenderedDocument) => void; reject: (error: Error) => void }
 
 let worker: Worker | null = null
 let nextId = 1
@@ -16,7 +22,7 @@ function renderer(): Worker {
 	const started = new Worker(path.resolve(process.cwd(), 'app/.server/render/render-worker.mjs'))
 	started.on(
 		'message',
-		(message: { id: number; ok: true; rendered: RenderedDossier } | { id: number; ok: false; message: string }) => {
+		(message: { id: number; ok: true; rendered: RenderedDocument } | { id: number; ok: false; message: string }) => {
 			const job = pending.get(message.id)
 			if (!job) return
 			pending.delete(message.id)
@@ -31,7 +37,7 @@ function renderer(): Worker {
 	}
 	started.on('error', failAll)
 	started.on('exit', (code) => {
-		if (code !== 0) failAll(new Error(`the dossier renderer stopped (exit ${code})`))
+		if (code !== 0) failAll(new Error(`the document renderer stopped (exit ${code})`))
 		worker = null
 	})
 	started.unref()
@@ -39,14 +45,11 @@ function renderer(): Worker {
 	return started
 }
 
-/** Renders a dossier off the main thread; other requests are served meanwhile. */
-export function renderDossierOffThread(
-	data: DossierDataInput,
-	options: { format: DossierFormat; templateId: string },
-): Promise<RenderedDossier> {
+/** Renders a document off the main thread; other requests are served meanwhile. */
+export function renderOffThread(job: RenderJob): Promise<RenderedDocument> {
 	return new Promise((resolve, reject) => {
 		const id = nextId++
 		pending.set(id, { resolve, reject })
-		renderer().postMessage({ id, data, format: options.format, templateId: options.templateId })
+		renderer().postMessage({ ...job, id })
 	})
 }

@@ -1,4 +1,4 @@
-// Starts the dossier renderer thread: registers tsx's loader in this thread, then runs the TypeScript worker.
+// Starts the document renderer thread: registers tsx's loader in this thread, then runs the TypeScript worker.
 import { register } from 'tsx/esm/api'
 
 register()

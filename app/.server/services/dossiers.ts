@@ -4,15 +4,23 @@ import { auditEvents } from '#app/.server/db/schema/audit.ts'
 import { dossiers } from '#app/.server/db/schema/dossiers.ts'
 import { materials } from '#app/.server/db/schema/materials.ts'
 import { evidence, signatures, specifications, specVersions } from '#app/.server/db/schema/specifications.ts'
-import type { DossierFormat } from '#app/.server/render/dossier.ts'
-import { renderDossierOffThread } from '#app/.server/render/render-pool.ts'
+import type { DocumentFormat } from '#app/.server/render/document.ts'
+import { renderOffThread } from '#app/.server/render/render-pool.ts'
+import { listDossierRuns } from '#app/.server/queries/dossier-runs.ts'
 import { recordAudit } from '#app/.server/services/audit.ts'
 import { publicBaseUrl } from '#app/.server/services/notifications.ts'
 import { versionContentHash } from '#app/.server/services/spec-workflow.ts'
 import { parseContent } from '#app/.server/services/specifications.ts'
 import { loadSpectrum } from '#app/.server/services/spectra.ts'
 import type { Actor } from '#shared/authz/permissions.ts'
-import { type DossierDataInput, type DossierEvidence, type FigurePoint, thinForFigure } from '#shared/dossier/model.ts'
+import {
+	type DossierDataInput,
+	type DossierEvidence,
+	type DossierRun,
+	type FigurePoint,
+	thinForFigure,
+} from '#shared/dossier/model.ts'
+import { canonicalJson, sha256Hex } from '#shared/specs/canonical.ts'
 import { diffVersions, summarizeChanges } from '#shared/specs/diff.ts'
 import { bandTolerance } from '#shared/spectra/criteria.ts'
 import type { Spectrum } from '#shared/spectra/types.ts'
@@ -50,10 +58,26 @@ type SpecificityJson = {
 	nearest: { fileName: string; materialName: string; correlation: number } | null
 }
 
-/** Everything the dossier of one version shows, resolved to plain values. Pure reads; no clock (renderedAt is given). */
+/** The organisation and site every controlled document names (BANDPROOF_ORGANISATION, BANDPROOF_SITE). */
+export function documentOrganisation(): { name: string; site: string } {
+	return {
+		name: process.env.BANDPROOF_ORGANISATION ?? 'Calder Vale Pharmaceuticals',
+		site: process.env.BANDPROOF_SITE ?? 'Incoming-materials QC laboratory',
+	}
+}
+
+/**
+ * Everything the dossier of one version shows, resolved to plain values. Pure reads; no clock (renderedAt is given).
+ * `identityRuns` is the appendix of the variant with runs (see getDossier), or null for the dossier without it.
+ */
 export async function buildDossierData(
 	db: Db,
-	input: { versionId: string; renderedAt: Date; inspectionLine?: string | null },
+	input: {
+		versionId: string
+		renderedAt: Date
+		inspectionLine?: string | null
+		identityRuns?: Array<DossierRun> | null
+	},
 ): Promise<DossierDataInput | null> {
 	const [row] = await db
 		.select({ version: specVersions, specification: specifications, material: materials })
@@ -168,10 +192,7 @@ export async function buildDossierData(
 	// A copy issued to an inspector is for information: it carries the "issued to" line and is not a controlled copy.
 	const controlled = version.state === 'effective' && !input.inspectionLine
 	return {
-		organisation: {
-			name: process.env.BANDPROOF_ORGANISATION ?? 'Calder Vale Pharmaceuticals',
-			site: process.env.BANDPROOF_SITE ?? 'Incoming-materials QC laboratory',
-		},
+		organisation: documentOrganisation(),
 		document: {
 			number: specification.documentNumber,
 			title: specification.title,
@@ -253,6 +274,7 @@ export async function buildDossierData(
 			instructions:
 				'Upload this file, or type its SHA-256, on the verification page: Bandproof says whether it matches a stored dossier, and which document, version and template made it.',
 		},
+		identityRuns: input.identityRuns ?? null,
 		renderedAt: input.renderedAt.toISOString(),
 	}
 }
@@ -263,18 +285,28 @@ export type DossierFile = { bytes: Uint8Array; sha256: string; fileName: string;
  * The dossier of a version in a format. Signed versions (approved and later) are rendered once per state and
  * stored: every later request gets the same bytes. Drafts and versions in review are rendered on demand and
  * carry the DRAFT mark. Every download is recorded in the audit trail.
+ *
+ * With `includeRuns`, the dossier carries Appendix A, the verified identity runs that tested against the version.
+ * That list grows after the version is signed, so it cannot live in the one stored dossier of a state without
+ * breaking the promise that every download of it is the same file. It is a separate stored variant instead, keyed
+ * by the SHA-256 of the canonical JSON (RFC 8785) of the appendix rows (`includedRunsSha256`): the same runs, as
+ * printed, always give the same stored bytes; a newly verified run or a concluded investigation changes the key and
+ * so renders and stores a new variant, while earlier copies stay stored and verifiable. The dossier without runs is
+ * untouched by any of this.
  */
 export async function getDossier(
 	db: Db,
 	input: {
 		actor: Actor | null
 		versionId: string
-		format: DossierFormat
+		format: DocumentFormat
 		now: Date
 		ipAddress?: string | null
 		purpose: 'download' | 'preview' | 'seed'
 		/** For an inspector: the "issued to … for inspection" line. Such copies are rendered for them, not stored. */
 		inspectionLine?: string
+		/** The variant with the identity-runs appendix. */
+		includeRuns?: boolean
 	},
 ): Promise<DossierFile | null> {
 	const [version] = await db
@@ -288,20 +320,21 @@ export async function getDossier(
 		.where(eq(specVersions.id, input.versionId))
 	if (!version) return null
 	const issued = Boolean(input.inspectionLine)
-	const fileName = `${version.documentNumber}-v${version.versionNumber}-${version.state}${issued ? '-inspection-copy' : ''}.${input.format}`
+	const identityRuns = input.includeRuns ? await listDossierRuns(db, input.versionId) : null
+	const includedRunsSha256 = identityRuns ? await sha256Hex(canonicalJson(identityRuns)) : null
+	const fileName = `${version.documentNumber}-v${version.versionNumber}-${version.state}${identityRuns ? '-with-runs' : ''}${issued ? '-inspection-copy' : ''}.${input.format}`
 	const stores = STORED_STATES.has(version.state) && !issued
+	const sameVariant = and(
+		eq(dossiers.versionId, input.versionId),
+		eq(dossiers.format, input.format),
+		eq(dossiers.versionState, version.state),
+		includedRunsSha256 === null
+			? isNull(dossiers.includedRunsSha256)
+			: eq(dossiers.includedRunsSha256, includedRunsSha256),
+	)
 	let file: DossierFile | null = null
 	if (stores) {
-		const [stored] = await db
-			.select()
-			.from(dossiers)
-			.where(
-				and(
-					eq(dossiers.versionId, input.versionId),
-					eq(dossiers.format, input.format),
-					eq(dossiers.versionState, version.state),
-				),
-			)
+		const [stored] = await db.select().from(dossiers).where(sameVariant)
 		if (stored) file = { bytes: stored.bytes, sha256: stored.sha256, fileName, stored: true }
 	}
 	if (!file) {
@@ -309,9 +342,10 @@ export async function getDossier(
 			versionId: input.versionId,
 			renderedAt: input.now,
 			inspectionLine: input.inspectionLine ?? null,
+			identityRuns,
 		})
 		if (!data) return null
-		const rendered = await renderDossierOffThread(data, { format: input.format, templateId: 'dossier' })
+		const rendered = await renderOffThread({ document: 'dossier', data, format: input.format, templateId: 'dossier' })
 		const template = rendered.template
 		if (stores) {
 			const [inserted] = await db
@@ -329,6 +363,7 @@ export async function getDossier(
 					controlledCopyNumber: String(data.controlledCopy.number),
 					renderedAt: input.now,
 					renderedBy: input.actor?.id ?? null,
+					includedRunsSha256,
 				})
 				.onConflictDoNothing()
 				.returning({ bytes: dossiers.bytes, sha256: dossiers.sha256 })
@@ -344,22 +379,14 @@ export async function getDossier(
 						sha256: rendered.sha256,
 						template: `${template.id} ${template.version}`,
 						templateSha256: template.sha256,
+						...(identityRuns ? { includedRuns: identityRuns.map((run) => run.runNumber), includedRunsSha256 } : {}),
 					},
 					occurredAt: input.now,
 				})
 				file = { bytes: rendered.bytes, sha256: rendered.sha256, fileName, stored: true }
 			} else {
 				// Someone stored it first: serve theirs, so every copy is the same.
-				const [winner] = await db
-					.select()
-					.from(dossiers)
-					.where(
-						and(
-							eq(dossiers.versionId, input.versionId),
-							eq(dossiers.format, input.format),
-							eq(dossiers.versionState, version.state),
-						),
-					)
+				const [winner] = await db.select().from(dossiers).where(sameVariant)
 				file = { bytes: winner!.bytes, sha256: winner!.sha256, fileName, stored: true }
 			}
 		} else {
@@ -377,6 +404,7 @@ export async function getDossier(
 				sha256: file.sha256,
 				stored: file.stored,
 				...(issued ? { issuedFor: input.inspectionLine } : {}),
+				...(identityRuns ? { includedRuns: identityRuns.length } : {}),
 			},
 			ipAddress: input.ipAddress ?? null,
 			occurredAt: input.now,

@@ -408,7 +408,11 @@ export default function VersionWorkspace({ loaderData, actionData }: Route.Compo
 				/>
 			</section>
 			<div className="mt-8">
-				<DossierPanel base={base} stored={['approved', 'effective', 'superseded', 'retired'].includes(version.state)} />
+				<DossierPanel
+					base={base}
+					stored={['approved', 'effective', 'superseded', 'retired'].includes(version.state)}
+					withRuns={['effective', 'superseded', 'retired'].includes(version.state)}
+				/>
 			</div>
 			<section aria-labelledby="history-heading" className="mt-8">
 				<h2 id="history-heading" className="mb-2 text-lg font-bold">

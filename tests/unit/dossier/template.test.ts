@@ -49,7 +49,7 @@ function allText(layout: ReturnType<typeof layoutDossier>): string {
 test('the shipped dossier template is identified by id, version and the SHA-256 of its files', async () => {
 	const template = await loadTemplate(templateDir('dossier'))
 	expect(template.id).toBe('dossier')
-	expect(template.version).toBe('1.0.0')
+	expect(template.version).toBe('1.1.0')
 	expect(template.sha256).toMatch(/^[0-9a-f]{64}$/)
 	expect(template.files.map((file) => file.path)).toEqual(['dossier.hbs', 'labels.json', 'manifest.json'])
 	// Sample data sits beside the template but is not part of it.

@@ -30,6 +30,16 @@ export const dossiers = pgTable(
 		controlledCopyNumber: text().notNull(),
 		renderedAt: timestamp({ withTimezone: true }).notNull(),
 		renderedBy: text().references(() => users.id),
+		/**
+		 * Null for the dossier itself. For the variant with the identity-runs appendix: the SHA-256 of the RFC 8785
+		 * canonical JSON of the runs it lists (app/.server/queries/dossier-runs.ts), so each set of runs, as printed,
+		 * is rendered once and served identical, and a newly verified run or a concluded investigation makes a new one.
+		 */
+		includedRunsSha256: text(),
 	},
-	(table) => [unique().on(table.versionId, table.format, table.versionState), index().on(table.sha256)],
+	(table) => [
+		// NULLS NOT DISTINCT (PostgreSQL 15): the plain dossier too is stored once per version, format and state.
+		unique().on(table.versionId, table.format, table.versionState, table.includedRunsSha256).nullsNotDistinct(),
+		index().on(table.sha256),
+	],
 )
