@@ -12,6 +12,7 @@ const benches: Array<Bench> = [
 	{ title: 'Spectral engine', run: async () => (await import('./engine.ts')).benchEngine() },
 	{ title: 'Import', run: async () => (await import('./import.ts')).benchImport() },
 	{ title: 'Dossier', run: async () => (await import('./dossier.ts')).benchDossier() },
+	{ title: 'Identity run', run: async () => (await import('./identity-run.ts')).benchIdentityRun() },
 	{ title: 'Load over HTTP (10,000 specifications)', run: async () => (await import('./load.ts')).benchLoad() },
 ]
 

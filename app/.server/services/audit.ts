@@ -23,18 +23,30 @@ export const SYSTEM_ACTOR: AuditActor = { id: null, label: 'system' }
  * so that a change and its record are committed together or not at all.
  */
 export async function recordAudit(db: Db, entry: AuditEntry): Promise<void> {
-	await db.insert(auditEvents).values({
-		actorId: entry.actor.id,
-		actorLabel: entry.actor.label,
-		action: entry.action,
-		entityType: entry.entityType,
-		entityId: entry.entityId ?? null,
-		before: entry.before ?? null,
-		after: entry.after ?? null,
-		reason: entry.reason ?? null,
-		ipAddress: entry.ipAddress ?? null,
-		occurredAt: entry.occurredAt ?? new Date(),
-	})
+	await recordAuditEvents(db, [entry])
+}
+
+/**
+ * Appends several events in one INSERT, chained in the order given: the chain trigger runs for each row in turn
+ * and sees the rows before it (PostgreSQL docs, "Visibility of Data Changes": a row-level BEFORE trigger sees the
+ * effects of rows previously processed by the same command).
+ */
+export async function recordAuditEvents(db: Db, entries: ReadonlyArray<AuditEntry>): Promise<void> {
+	if (entries.length === 0) return
+	await db.insert(auditEvents).values(
+		entries.map((entry) => ({
+			actorId: entry.actor.id,
+			actorLabel: entry.actor.label,
+			action: entry.action,
+			entityType: entry.entityType,
+			entityId: entry.entityId ?? null,
+			before: entry.before ?? null,
+			after: entry.after ?? null,
+			reason: entry.reason ?? null,
+			ipAddress: entry.ipAddress ?? null,
+			occurredAt: entry.occurredAt ?? new Date(),
+		})),
+	)
 }
 
 /** Client address as seen by the server, from the proxy header when one is set. */

@@ -2,7 +2,7 @@ import { createHash } from 'node:crypto'
 import { eq } from 'drizzle-orm'
 import type { Db } from '#app/.server/db/client.ts'
 import { spectra } from '#app/.server/db/schema/spectra.ts'
-import { recordAudit } from '#app/.server/services/audit.ts'
+import { recordAuditEvents } from '#app/.server/services/audit.ts'
 import type { Actor } from '#shared/authz/permissions.ts'
 import { ENGINE_VERSION } from '#shared/spectra/preprocess.ts'
 import { importSpectrum } from '#shared/spectra/import.ts'
@@ -81,69 +81,90 @@ export async function storeSpectrumFile(
 
 export type ImportedSpectrum = Extract<ReturnType<typeof importSpectrum>, { ok: true }>['value']
 
+export type SpectrumInsert = {
+	actor: Actor
+	fileName: string
+	bytes: Uint8Array
+	sha256: string
+	imported: ImportedSpectrum
+	metadata: SpectrumMetadata
+	now: Date
+	lockedAt: Date | null
+}
+
 /**
  * Inserts one parsed file with its audit event, inside the caller's transaction. Returns null when the same bytes
  * were stored meanwhile (the SHA-256 is unique). `lockedAt` freezes the row at once (evidence of a run or a check).
  */
-export async function insertSpectrum(
-	tx: Db,
-	input: {
-		actor: Actor
-		fileName: string
-		bytes: Uint8Array
-		sha256: string
-		imported: ImportedSpectrum
-		metadata: SpectrumMetadata
-		now: Date
-		lockedAt: Date | null
-	},
-): Promise<string | null> {
-	const { spectrum, metadata, warnings } = input.imported
-	const points = spectrum.x.length
-	const [row] = await tx
+export async function insertSpectrum(tx: Db, input: SpectrumInsert): Promise<string | null> {
+	const [id] = await insertSpectra(tx, [input])
+	return id ?? null
+}
+
+/**
+ * insertSpectrum for many files at once: one INSERT for the rows and one for their audit events (one event per
+ * spectrum, as before, chained in the order given), so a 100-container run costs two round trips instead of 200.
+ * Returns each input's id, or null for one whose bytes were stored meanwhile.
+ */
+export async function insertSpectra(tx: Db, inputs: ReadonlyArray<SpectrumInsert>): Promise<Array<string | null>> {
+	if (inputs.length === 0) return []
+	const rows = await tx
 		.insert(spectra)
-		.values({
-			sha256: input.sha256,
-			fileName: input.fileName,
-			byteSize: input.bytes.byteLength,
-			originalBytes: input.bytes,
-			format: metadata.format,
-			title: metadata.title,
-			points,
-			minWavenumber: spectrum.x[0]!,
-			maxWavenumber: spectrum.x[points - 1]!,
-			xUnits: metadata.xUnits,
-			yUnits: metadata.yUnits,
-			ordinate: metadata.ordinate,
-			x: floatsToBytes(spectrum.x),
-			y: floatsToBytes(spectrum.y),
-			warnings,
-			labels: metadata.labels,
-			parserVersion: ENGINE_VERSION,
-			...input.metadata,
-			uploadedBy: input.actor.id,
-			uploadedAt: input.now,
-			lockedAt: input.lockedAt,
-		})
+		.values(
+			inputs.map((input) => {
+				const { spectrum, metadata, warnings } = input.imported
+				const points = spectrum.x.length
+				return {
+					sha256: input.sha256,
+					fileName: input.fileName,
+					byteSize: input.bytes.byteLength,
+					originalBytes: input.bytes,
+					format: metadata.format,
+					title: metadata.title,
+					points,
+					minWavenumber: spectrum.x[0]!,
+					maxWavenumber: spectrum.x[points - 1]!,
+					xUnits: metadata.xUnits,
+					yUnits: metadata.yUnits,
+					ordinate: metadata.ordinate,
+					x: floatsToBytes(spectrum.x),
+					y: floatsToBytes(spectrum.y),
+					warnings,
+					labels: metadata.labels,
+					parserVersion: ENGINE_VERSION,
+					...input.metadata,
+					uploadedBy: input.actor.id,
+					uploadedAt: input.now,
+					lockedAt: input.lockedAt,
+				}
+			}),
+		)
 		.onConflictDoNothing({ target: spectra.sha256 })
-		.returning({ id: spectra.id })
-	if (!row) return null
-	await recordAudit(tx, {
-		actor: { id: input.actor.id, label: input.actor.email },
-		action: 'spectrum.uploaded',
-		entityType: 'spectrum',
-		entityId: row.id,
-		after: {
-			fileName: input.fileName,
-			sha256: input.sha256,
-			points,
-			format: metadata.format,
-			ordinate: metadata.ordinate,
-			purpose: input.metadata.purpose,
-		},
-		occurredAt: input.now,
+		.returning({ id: spectra.id, sha256: spectra.sha256 })
+	const ids = new Map(rows.map((row) => [row.sha256, row.id]))
+	const stored = inputs.flatMap((input) => {
+		const id = ids.get(input.sha256)
+		return id ? [{ input, id }] : []
 	})
-	return row.id
+	await recordAuditEvents(
+		tx,
+		stored.map(({ input, id }) => ({
+			actor: { id: input.actor.id, label: input.actor.email },
+			action: 'spectrum.uploaded',
+			entityType: 'spectrum',
+			entityId: id,
+			after: {
+				fileName: input.fileName,
+				sha256: input.sha256,
+				points: input.imported.spectrum.x.length,
+				format: input.imported.metadata.format,
+				ordinate: input.imported.metadata.ordinate,
+				purpose: input.metadata.purpose,
+			},
+			occurredAt: input.now,
+		})),
+	)
+	return inputs.map((input) => ids.get(input.sha256) ?? null)
 }
 
 /** The parsed data of a stored spectrum, or null. */
