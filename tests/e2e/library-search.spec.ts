@@ -25,7 +25,7 @@ function watchRequests(page: Page, pathname: string) {
 	return seen
 }
 
-test('[SRCH-010] typing in the specification search filters the list without a page load and keeps ?q= in the address', async ({
+test('[LIB-010] typing in the specification search filters the list without a page load and keeps ?q= in the address', async ({
 	page,
 }) => {
 	await signIn(page, 'reviewer@bandproof.test')
@@ -77,7 +77,7 @@ test('[SRCH-010] typing in the specification search filters the list without a p
 	await expect(page.getByRole('searchbox', { name: 'Search' })).toHaveValue('')
 })
 
-test('[SRCH-011] the spectra library filters by material name as you type; Back returns to the whole library', async ({
+test('[LIB-011] the spectra library filters by material name as you type; Back returns to the whole library', async ({
 	page,
 }) => {
 	await signIn(page, 'author@bandproof.test')
@@ -109,7 +109,7 @@ test('[SRCH-011] the spectra library filters by material name as you type; Back 
 	expect(await documentMark(page)).toBe('still here')
 })
 
-test('[SRCH-012] without JavaScript the search is a plain GET form with the same results', async ({ browser }) => {
+test('[LIB-012] without JavaScript the search is a plain GET form with the same results', async ({ browser }) => {
 	const context = await browser.newContext({ javaScriptEnabled: false })
 	const page = await context.newPage()
 	await signIn(page, 'reviewer@bandproof.test')

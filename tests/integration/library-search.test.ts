@@ -28,7 +28,7 @@ const specTitles = async (q: string) =>
 const spectrumFiles = async (q: string) =>
 	(await listSpectra(db, SpectrumListQuerySchema.parse({ q }))).rows.map((row) => row.fileName).sort()
 
-test('[SRCH-003] specifications match by number, title, material code, name or CAS RN, ignoring case; % and _ are literal', async () => {
+test('[LIB-003] specifications match by number, title, material code, name or CAS RN, ignoring case; % and _ are literal', async () => {
 	const author = await makeActor(db, 'author')
 	// CAS RNs from memory (acetylsalicylic acid 50-78-2, caffeine 58-08-2); the registration checks their check digits.
 	const aspirin = await material(author, 'RM-S01', 'Acetylsalicylic acid', '50-78-2')
@@ -48,7 +48,7 @@ test('[SRCH-003] specifications match by number, title, material code, name or C
 	expect(await specTitles('no such thing')).toEqual([])
 })
 
-test('[SRCH-004] spectra match by file, lot, material or CAS RN; % _ and \\ are literal', async () => {
+test('[LIB-004] spectra match by file, lot, material or CAS RN; % _ and \\ are literal', async () => {
 	const author = await makeActor(db, 'author')
 	const aspirin = await material(author, 'RM-S11', 'Acetylsalicylic acid', '50-78-2')
 	const files = [
@@ -73,7 +73,7 @@ test('[SRCH-004] spectra match by file, lot, material or CAS RN; % _ and \\ are 
 	expect(await spectrumFiles('chloroaniline')).toEqual(['2_chloroaniline_pe1000.jdx', '3_chloroaniline_pe1000.jdx'])
 })
 
-test('[SRCH-005] the list loaders read ?q= through zod: trimmed, and a no-match answers an empty page', async () => {
+test('[LIB-005] the list loaders read ?q= through zod: trimmed, and a no-match answers an empty page', async () => {
 	const author = await makeActor(db, 'author')
 	const caffeine = await material(author, 'RM-S21', 'Caffeine', '58-08-2')
 	await specification(author, caffeine, 'Identity of caffeine by FTIR')

@@ -49,7 +49,7 @@ export default function SpecificationList({ loaderData }: Route.ComponentProps) 
 					label="Search"
 					defaultValue={query.q}
 					placeholder="Number, title, material or CAS RN"
-					className="w-64"
+					className="w-72"
 				/>
 				<SelectFilter
 					id="spec-state"

@@ -5,7 +5,7 @@ import { containsPattern, SEARCH_TEXT_MAX, SearchTextSchema } from '#shared/sear
 // literal underscore or percent sign ... the respective character in pattern must be preceded by the escape
 // character. The default escape character is the backslash ... To match the escape character itself, write two
 // escape characters." The integration test library-search.test.ts runs these patterns against PostgreSQL itself.
-test('[SRCH-001] the search text is matched literally: % _ and \\ are escaped with a backslash', () => {
+test('[LIB-001] the search text is matched literally: % _ and \\ are escaped with a backslash', () => {
 	expect(containsPattern('acid')).toBe('%acid%')
 	expect(containsPattern('50%')).toBe('%50\\%%')
 	expect(containsPattern('LOT_7')).toBe('%LOT\\_7%')
@@ -13,7 +13,7 @@ test('[SRCH-001] the search text is matched literally: % _ and \\ are escaped wi
 	expect(containsPattern('%_\\')).toBe('%\\%\\_\\\\%')
 })
 
-test('[SRCH-002] ?q= is trimmed, its inner whitespace collapsed and its length capped; empty or absent is no search', () => {
+test('[LIB-002] ?q= is trimmed, its inner whitespace collapsed and its length capped; empty or absent is no search', () => {
 	expect(SearchTextSchema.parse('  acetyl   salicylic \t')).toBe('acetyl salicylic')
 	expect(SearchTextSchema.parse('')).toBeUndefined()
 	expect(SearchTextSchema.parse('   ')).toBeUndefined()
