@@ -137,11 +137,16 @@ export default function RunPage({ loaderData, actionData }: Route.ComponentProps
 					</>
 				}
 				actions={
-					may.retest ? (
-						<Link to={`/runs/${run.id}/retest`} className={buttonVariants({ variant: 'secondary' })}>
-							Record a retest
-						</Link>
-					) : null
+					<>
+						<a href={`/runs/${run.id}/record.pdf`} className={buttonVariants({ variant: 'secondary' })} download>
+							Run record (PDF)
+						</a>
+						{may.retest ? (
+							<Link to={`/runs/${run.id}/retest`} className={buttonVariants({ variant: 'secondary' })}>
+								Record a retest
+							</Link>
+						) : null}
+					</>
 				}
 			/>
 			<div className="mb-4 flex flex-wrap items-center gap-2" data-testid="run-status">
