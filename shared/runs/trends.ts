@@ -108,6 +108,36 @@ export function thresholdLines(points: ReadonlyArray<TrendPoint>): Array<Thresho
 		.map(([documentNumber, steps]) => ({ documentNumber, steps }))
 }
 
+/**
+ * How far below the lowest threshold a chart's scale reaches, in multiples of the threshold's distance from 1
+ * (0.95 → down to 0.80). Wide enough to show a drift towards the threshold; one wrong material (a correlation of
+ * 0.2, say) would otherwise squash every other point against 1.0.
+ */
+export const FOCUS_DEPTH = 3
+
+export type CorrelationFocus = {
+	/** Lowest and highest value the scale must show (correlations on the scale, and every threshold). */
+	low: number
+	high: number
+	/** Correlations under this value lie off the scale (drawn apart, values in the table); null when none do. */
+	offScaleBelow: number | null
+}
+
+/** The correlation range a trend chart shows; null without any correlation or threshold to show. */
+export function correlationFocus(points: ReadonlyArray<TrendPoint>): CorrelationFocus | null {
+	if (points.length === 0) return null
+	const thresholds = points.map((point) => point.threshold)
+	const lowestThreshold = Math.min(...thresholds)
+	const cut = lowestThreshold - FOCUS_DEPTH * Math.max(1 - lowestThreshold, 0.01)
+	const values = points.flatMap((point) => (point.correlation === null ? [] : [point.correlation]))
+	const onScale = values.filter((value) => value >= cut)
+	return {
+		low: Math.min(lowestThreshold, ...onScale),
+		high: Math.max(...thresholds, ...onScale),
+		offScaleBelow: onScale.length < values.length ? cut : null,
+	}
+}
+
 const day = (iso: string) => iso.slice(0, 10)
 
 /** One paragraph that says what the chart shows, for its accessible description and for readers without it. */

@@ -2,6 +2,7 @@ import fc from 'fast-check'
 import { describe, expect, test } from 'vitest'
 
 import {
+	correlationFocus,
 	describeTrend,
 	isBelowThreshold,
 	isOffTarget,
@@ -209,4 +210,35 @@ test('the point schema refuses a correlation outside [-1, 1] and an unknown verd
 	expect(TrendPointSchema.safeParse(point({ correlation: 1.2 })).success).toBe(false)
 	expect(TrendPointSchema.safeParse({ ...point(), verdict: 'passed' }).success).toBe(false)
 	expect(TrendPointSchema.safeParse({ ...point(), recordedAt: '5 January' }).success).toBe(false)
+})
+
+describe('the range a chart shows', () => {
+	test('a wrong material far below does not squash the scale: it lies off the scale, below 3 × (1 − threshold)', () => {
+		// Threshold 0.95: the scale reaches down to 0.95 − 3 × 0.05 = 0.80.
+		const focus = correlationFocus([
+			point({ correlation: 0.9991 }),
+			point({ correlation: 0.9712 }),
+			point({ correlation: 0.1791, verdict: 'does-not-conform' }),
+		])
+		expect(focus!.low).toBe(0.95)
+		expect(focus!.high).toBe(0.9991)
+		expect(focus!.offScaleBelow).toBeCloseTo(0.8, 12)
+	})
+
+	test('a drift inside the focus stays on the scale; the lowest threshold of several versions counts', () => {
+		const focus = correlationFocus([
+			point({ correlation: 0.99, threshold: 0.97 }),
+			point({ correlation: 0.86, threshold: 0.95, verdict: 'does-not-conform' }),
+			point({ correlation: null, verdict: 'inconclusive' }),
+		])
+		expect(focus).toEqual({ low: 0.86, high: 0.99, offScaleBelow: null })
+	})
+
+	test('a threshold of 1 still leaves a scale (at least 0.01 per step); nothing to show gives null', () => {
+		// 1 − 3 × 0.01 = 0.97: a correlation of 0.9 lies off the scale.
+		const focus = correlationFocus([point({ correlation: 0.9, threshold: 1 })])
+		expect(focus).toMatchObject({ low: 1, high: 1 })
+		expect(focus!.offScaleBelow).toBeCloseTo(0.97, 12)
+		expect(correlationFocus([])).toBeNull()
+	})
 })
