@@ -48,6 +48,7 @@ export default [
 			route(':specId/versions/:versionId/dossier/:format', 'routes/specifications/dossier.ts'),
 		]),
 		route('queue', 'routes/queue.tsx'),
+		route('trends', 'routes/trends.tsx'),
 		route('verify', 'routes/verify.tsx'),
 		route('api-docs', 'routes/api-docs.tsx'),
 		...prefix('inspection', [
