@@ -62,6 +62,7 @@ export default [
 		]),
 		route('queue', 'routes/queue.tsx'),
 		route('queue/count', 'routes/queue.count.ts'),
+		route('trends', 'routes/trends.tsx'),
 		route('verify', 'routes/verify.tsx'),
 		route('api-docs', 'routes/api-docs.tsx'),
 		// Inspectors may POST here (their own read-only keys): see ROUTE_POLICIES in app/.server/context.ts.

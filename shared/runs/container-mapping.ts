@@ -22,7 +22,8 @@ export type ContainerMapping = {
 
 // A number introduced by a container word wins over any other number in the name ('lot-2411-c03' → 3).
 const LABELLED = /(?:^|[^a-z])(?:c|ct|cnt|cont|container|drum|bag|keg|fass|#)[\s_\-.#]*0*(\d{1,4})(?!\d)/gi
-const ANY_NUMBER = /(\d{1,4})(?!\d)/g
+// NOTE: a number is read whole: the tail of a longer digit run ('QC240001', a sample id) is no container number.
+const ANY_NUMBER = /(?<!\d)(\d{1,4})(?!\d)/g
 
 /** The container number a file name suggests, or null when it suggests none. */
 export function containerFromFileName(fileName: string): number | null {

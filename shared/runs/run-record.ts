@@ -32,14 +32,34 @@ export type RunRecordInput = {
 /** Rounds a correlation to 6 decimals so that the record does not depend on float printing. */
 const round6 = (value: number | null) => (value === null ? null : Math.round(value * 1e6) / 1e6)
 
+/**
+ * The JSON object both signatures on a run cover. Every field is picked by name, as for specification versions, so
+ * that a caller passing a wider object (a database row with ids, stored evidence…) cannot change what is hashed.
+ * Containers are ordered by number; correlations are rounded to 6 decimals. Pure.
+ */
 export function canonicalRunRecord(input: RunRecordInput): JsonValue {
+	const { material, lot, specification, instrument } = input
 	return {
 		format: RUN_RECORD_FORMAT,
 		runNumber: input.runNumber,
-		material: { ...input.material },
-		lot: { ...input.lot },
-		specification: { ...input.specification },
-		instrument: { ...input.instrument },
+		material: { code: material.code, name: material.name },
+		lot: {
+			lotNumber: lot.lotNumber,
+			supplier: lot.supplier,
+			containerCount: lot.containerCount,
+			receivedOn: lot.receivedOn,
+		},
+		specification: {
+			documentNumber: specification.documentNumber,
+			versionNumber: specification.versionNumber,
+			contentSha256: specification.contentSha256,
+		},
+		instrument: {
+			code: instrument.code,
+			checkId: instrument.checkId,
+			checkPerformedAt: instrument.checkPerformedAt,
+			checkValidUntil: instrument.checkValidUntil,
+		},
 		retestOf: input.retestOf,
 		retestReason: input.retestReason,
 		recordedBy: input.recordedBy,
@@ -47,9 +67,13 @@ export function canonicalRunRecord(input: RunRecordInput): JsonValue {
 		containers: [...input.containers]
 			.sort((a, b) => a.container - b.container)
 			.map((row) => ({
-				...row,
+				container: row.container,
+				sampleSha256: row.sampleSha256,
+				sampleFileName: row.sampleFileName,
+				verdict: row.verdict,
 				correlation: round6(row.correlation),
 				derivativeCorrelation: round6(row.derivativeCorrelation),
+				algorithmVersion: row.algorithmVersion,
 			})),
 		outcome: input.outcome,
 	}

@@ -191,8 +191,9 @@ export async function verifiedRunsForSpecification(db: Db, specificationId: stri
 }
 
 /**
- * Every container correlation of a material's runs over time, with what may explain a drift (supplier,
- * instrument, lot) and the threshold the run was judged against.
+ * Every container correlation of a material's runs over time (oldest first, then by container), with what may
+ * explain a drift (supplier, instrument, lot) and the threshold of the specification version the run was judged
+ * against.
  */
 export async function trendPoints(db: Db, materialId: string) {
 	const rows = await db
@@ -206,6 +207,8 @@ export async function trendPoints(db: Db, materialId: string) {
 			containerNumber: runContainers.containerNumber,
 			verdict: runContainers.verdict,
 			correlation: runContainers.correlation,
+			documentNumber: specifications.documentNumber,
+			versionId: specVersions.id,
 			versionNumber: specVersions.versionNumber,
 			versionContent: specVersions.content,
 		})
@@ -213,14 +216,16 @@ export async function trendPoints(db: Db, materialId: string) {
 		.innerJoin(identityRuns, eq(identityRuns.id, runContainers.runId))
 		.innerJoin(lots, eq(lots.id, identityRuns.lotId))
 		.innerJoin(instruments, eq(instruments.id, identityRuns.instrumentId))
+		.innerJoin(specifications, eq(specifications.id, identityRuns.specificationId))
 		.innerJoin(specVersions, eq(specVersions.id, identityRuns.versionId))
 		.where(eq(lots.materialId, materialId))
 		.orderBy(asc(identityRuns.recordedAt), asc(runContainers.containerNumber))
-	const thresholds = new Map<number, number>()
+	// NOTE: keyed by version id: version numbers restart in each specification, and a material may have several.
+	const thresholds = new Map<string, number>()
 	return rows.map(({ versionContent, ...row }) => {
-		if (!thresholds.has(row.versionNumber))
-			thresholds.set(row.versionNumber, parseContent(versionContent).criteria.minCorrelation)
-		return { ...row, threshold: thresholds.get(row.versionNumber)! }
+		if (!thresholds.has(row.versionId))
+			thresholds.set(row.versionId, parseContent(versionContent).criteria.minCorrelation)
+		return { ...row, threshold: thresholds.get(row.versionId)! }
 	})
 }
 

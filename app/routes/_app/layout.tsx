@@ -67,6 +67,7 @@ const NAVIGATION: Array<NavGroup> = [
 		heading: 'Work',
 		items: [
 			{ to: '/queue', label: 'My queue', permission: 'queue:read' },
+			{ to: '/trends', label: 'Trends', permission: 'run:read' },
 			{ to: '/audit', label: 'Audit trail', permission: 'audit:read' },
 			{ to: '/verify', label: 'Verify a copy', permission: 'dossier:verify' },
 			{ to: '/inspection', label: 'Inspection', permission: 'inspection:read' },
