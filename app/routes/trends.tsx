@@ -1,4 +1,4 @@
-import { data, Form } from 'react-router'
+import { data, Form, Link } from 'react-router'
 import { z } from 'zod'
 import type { Route } from './+types/trends'
 import { authorize } from '#app/.server/context.ts'
@@ -171,7 +171,14 @@ export default function Trends({ loaderData }: Route.ComponentProps) {
 											<td className="text-ink-soft px-3 py-1.5 whitespace-nowrap tabular-nums">
 												{point.recordedAt.slice(0, 16).replace('T', ' ')}
 											</td>
-											<td className="px-3 py-1.5 font-medium whitespace-nowrap">{point.runNumber}</td>
+											<td className="px-3 py-1.5 font-medium whitespace-nowrap">
+												<Link
+													to={`/runs/${point.runId}/containers/${point.containerNumber}`}
+													className="text-accent underline-offset-4 hover:underline"
+												>
+													{point.runNumber}
+												</Link>
+											</td>
 											<td className="px-3 py-1.5">{point.lotNumber}</td>
 											<td className="px-3 py-1.5">{point.supplier}</td>
 											<td className="px-3 py-1.5">{point.instrumentCode}</td>

@@ -60,6 +60,7 @@ const NAVIGATION: Array<NavGroup> = [
 		heading: 'Release testing',
 		items: [
 			{ to: '/lots', label: 'Lots and runs', permission: 'run:read' },
+			{ to: '/trends', label: 'Trends', permission: 'run:read' },
 			{ to: '/instruments', label: 'Instruments', permission: 'instrument:read' },
 		],
 	},
@@ -67,7 +68,6 @@ const NAVIGATION: Array<NavGroup> = [
 		heading: 'Work',
 		items: [
 			{ to: '/queue', label: 'My queue', permission: 'queue:read' },
-			{ to: '/trends', label: 'Trends', permission: 'run:read' },
 			{ to: '/audit', label: 'Audit trail', permission: 'audit:read' },
 			{ to: '/verify', label: 'Verify a copy', permission: 'dossier:verify' },
 			{ to: '/inspection', label: 'Inspection', permission: 'inspection:read' },
