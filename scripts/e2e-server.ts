@@ -51,6 +51,10 @@ async function stop(code: number) {
 	if (stopping) return
 	stopping = true
 	server.kill('SIGTERM')
+	// react-router-serve outlives SIGTERM while its database connections are open (see scripts/start.ts).
+	const killer = setTimeout(() => server.kill('SIGKILL'), 5000)
+	await new Promise((resolve) => (server.exitCode !== null ? resolve(null) : server.once('exit', resolve)))
+	clearTimeout(killer)
 	await fakeSmtp?.stop()
 	await cluster.stop()
 	process.exit(code)

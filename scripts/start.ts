@@ -62,9 +62,13 @@ const server = spawn(path.join(projectRoot, 'node_modules/.bin/react-router-serv
 	},
 })
 console.log(`Bandproof is starting on ${publicUrl} (demo password: see README).`)
+// NOTE: react-router-serve closes its listener on SIGTERM but its open database connections keep the process alive,
+// so after a grace period it is killed; the cluster then stops in shutdown().
+const SERVER_STOP_GRACE_MS = 5000
 for (const signal of ['SIGINT', 'SIGTERM'] as const) {
 	process.on(signal, () => {
 		server.kill(signal)
+		setTimeout(() => server.kill('SIGKILL'), SERVER_STOP_GRACE_MS).unref()
 	})
 }
 server.on('exit', (code) => {
