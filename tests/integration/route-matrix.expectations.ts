@@ -99,6 +99,7 @@ GET    /runs/:unknownId                                             login     40
 POST   /runs/:runId                                                 login     400    400      400      400     403       400
 POST   /runs/:runId#sign-performed                                  login     403    403      403      409     403       403
 POST   /runs/:runId#verify                                          login     403    409      409      409     403       403
+POST   /runs/:runId#verify-no-password                              login     403    400      400      400     403       403
 POST   /runs/:runId#close-investigation                             login     403    403      302      403     403       403
 GET    /runs/:runId/retest                                          login     403    403      403      200     403       403
 POST   /runs/:runId/retest                                          login     403    403      403      400     403       403
@@ -161,6 +162,8 @@ export const REQUESTS: Record<string, RequestSpec> = {
 	// Signatures and the investigation of the verified, flagged run, each with the signer's password.
 	'POST /runs/:runId#sign-performed': { form: { intent: 'sign-performed', password: ':password' } },
 	'POST /runs/:runId#verify': { form: { intent: 'verify', password: ':password' } },
+	// Refused by role before the missing password is noticed.
+	'POST /runs/:runId#verify-no-password': { form: { intent: 'verify' } },
 	'POST /runs/:runId#close-investigation': {
 		form: {
 			intent: 'close-investigation',
