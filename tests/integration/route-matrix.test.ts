@@ -13,14 +13,19 @@
 import { eq } from 'drizzle-orm'
 import { afterAll, beforeAll, expect, test } from 'vitest'
 import { db } from '#app/.server/db/client.ts'
+import { identityRuns } from '#app/.server/db/schema/runs.ts'
 import { specifications } from '#app/.server/db/schema/specifications.ts'
 import { createApiKey } from '#app/.server/services/api-keys.ts'
 import { createGrant } from '#app/.server/services/grants.ts'
+import { recordIdentityRun, signIdentityRun } from '#app/.server/services/identity-runs.ts'
+import { recordInstrumentCheck, registerInstrument } from '#app/.server/services/instruments.ts'
 import { startNextVersion } from '#app/.server/services/specifications.ts'
 import routeConfig from '#app/routes.ts'
 import { type Actor, apiKeyScopesFor, ROLES, type Role } from '#shared/authz/permissions.ts'
 import { type AppHandler, startAppHandler } from '#tests/support/app-handler.ts'
-import { makeActor, makeSignedVersion, TEST_PASSWORD } from '#tests/support/factories.ts'
+import { containerFiles } from '#tests/support/container-samples.ts'
+import { makeActor, makeSignedVersion, TEST_PASSWORD, WORKFLOW_REFERENCE_FILE } from '#tests/support/factories.ts'
+import { readReferenceFile } from '#tests/support/reference-spectra.ts'
 import {
 	type Cell,
 	cellOf,
@@ -128,10 +133,71 @@ type Fixtures = {
 	values: Record<string, string>
 }
 
+/** The real polystyrene film of the shared set that passes the Ph. Eur. 2.2.24 FT table (SOURCES.md). */
+const POLYSTYRENE_FILM = 'polystyrene/ps_film_pe1600_2cm_DIFDUP.jdx'
+/** 3-chloroaniline, the positional isomer of the reference compound: SOURCES.md lists it as "must not match". */
+const ISOMER = 'compounds/3_chloroaniline_pe1000.jdx'
+
+/**
+ * An instrument with a passing check, and a lot of the other specification's material whose identity run is flagged
+ * (container 1 a replicate of the reference spectrum, container 2 the isomer), signed by the analyst and verified by
+ * the reviewer: its investigation is open, so a retest may be recorded and an approver may conclude it.
+ */
+async function releaseTesting(people: Record<Role, Actor>, specificationId: string, now: Date) {
+	const instrument = await registerInstrument(db, {
+		actor: people.admin,
+		values: {
+			code: 'IR-MATRIX',
+			name: 'Bench FTIR',
+			serialNumber: null,
+			location: 'QC lab 2',
+			checkValidityDays: 30,
+			checkTable: 'ph-eur-ft',
+		},
+		now,
+	})
+	if (!instrument.ok) throw instrument.error
+	const check = await recordInstrumentCheck(db, {
+		actor: people.analyst,
+		instrumentId: instrument.value.id,
+		fileName: 'ps-film.jdx',
+		bytes: readReferenceFile(POLYSTYRENE_FILM),
+		notes: null,
+		now,
+	})
+	if (!check.ok) throw check.error
+	expect(check.value.passed).toBe(true)
+	const lotNumber = 'L-MATRIX-1'
+	const run = await recordIdentityRun(db, {
+		kind: 'first',
+		actor: people.analyst,
+		specificationId,
+		lot: { lotNumber, supplier: 'Northbridge Fine Chemicals', containerCount: 2, receivedOn: isoDay(now) },
+		instrumentId: instrument.value.id,
+		files: containerFiles(lotNumber, [{ relPath: WORKFLOW_REFERENCE_FILE, seed: 1 }, { relPath: ISOMER }]),
+		now,
+	})
+	if (!run.ok) throw run.error
+	expect(run.value.outcome).toBe('flagged')
+	for (const [actor, intent] of [
+		[people.analyst, 'sign-performed'],
+		[people.reviewer, 'verify'],
+	] as const) {
+		const signed = await signIdentityRun(db, { actor, runId: run.value.runId, intent, now })
+		if (!signed.ok) throw signed.error
+	}
+	const [recorded] = await db
+		.select({ lotId: identityRuns.lotId })
+		.from(identityRuns)
+		.where(eq(identityRuns.id, run.value.runId))
+	return { instrumentId: instrument.value.id, lotId: recorded!.lotId, runId: run.value.runId }
+}
+
 /**
  * One user per role, an effective version covered by the inspector's grant and the draft that follows it, an
- * effective version of another specification outside the grant, and for each user a session and an API key with
- * the widest scopes their roles allow.
+ * effective version of another specification outside the grant, an instrument and a lot tested against that other
+ * specification (see releaseTesting), and for each user a session and an API key with the widest scopes their
+ * roles allow.
  */
 async function fixtures(): Promise<Fixtures> {
 	const now = new Date()
@@ -161,6 +227,7 @@ async function fixtures(): Promise<Fixtures> {
 		now,
 	})
 	if (!granted.ok) throw granted.error
+	const testing = await releaseTesting(people, other.specificationId, now)
 	const [specification] = await db
 		.select({ materialId: specifications.materialId })
 		.from(specifications)
@@ -190,6 +257,9 @@ async function fixtures(): Promise<Fixtures> {
 			materialId: specification!.materialId,
 			spectrumId: released.referenceSpectrumId,
 			userId: people.author.id,
+			instrumentId: testing.instrumentId,
+			lotId: testing.lotId,
+			runId: testing.runId,
 			unknownId: crypto.randomUUID(),
 			password: TEST_PASSWORD,
 		},

@@ -96,9 +96,13 @@ export async function action({ request, context, params }: Route.ActionArgs) {
 			description: CONCLUSION_LABELS[submission.value.conclusion],
 		})
 	}
+	// The signature asked for decides the permission, before the rest of the form is read: someone who may not sign
+	// is told so, not asked for a password.
+	const signing = RunSignFormSchema.shape.intent.safeParse(intent)
+	if (!signing.success) return fail('Choose what to sign.', 400)
+	authorize(context, signing.data === 'verify' ? 'run:verify' : 'run:record')
 	const submission = RunSignFormSchema.safeParse(Object.fromEntries(formData))
 	if (!submission.success) return fail('Type your password to sign.', 400)
-	authorize(context, submission.data.intent === 'verify' ? 'run:verify' : 'run:record')
 	const reauthenticated = await reauthenticate(actor.id, submission.data.password)
 	if (!reauthenticated.ok) return fail(reauthenticated.error.message, reauthenticated.error.status)
 	const outcome = await signIdentityRun(db, { actor, runId, intent: submission.data.intent, now: new Date() })
