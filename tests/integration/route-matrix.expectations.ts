@@ -77,6 +77,7 @@ POST   /specifications/:specId/versions/:versionId                  login     40
 POST   /specifications/:specId/versions/:versionId#submit           login     409    403      403      403     403       403
 POST   /specifications/:specId/versions/:versionId#sign-reviewed    login     403    409      409      403     403       403
 POST   /specifications/:specId/versions/:versionId#redline-add      login     403    409      409      403     403       403
+POST   /specifications/:specId/versions/:versionId#redline-empty    login     403    400      400      403     403       403
 POST   /specifications/:specId/versions/:versionId#redline-reply    login     404    404      404      404     403       404
 GET    /specifications/:specId/versions/:versionId/band-suggestions login     200    403      403      403     403       403
 GET    /specifications/:specId/versions/:versionId/dossier/pdf      login     200    200      200      200     403       200
@@ -155,6 +156,10 @@ export const REQUESTS: Record<string, RequestSpec> = {
 	},
 	'POST /specifications/:specId/versions/:versionId#redline-add': {
 		form: { intent: 'redline-add', anchor: 'scope', body: 'Name the suppliers covered.' },
+	},
+	// An empty comment: refused by role first (403), and only then as an invalid form (400).
+	'POST /specifications/:specId/versions/:versionId#redline-empty': {
+		form: { intent: 'redline-add', anchor: 'scope', body: '' },
 	},
 	'POST /specifications/:specId/versions/:versionId#redline-reply': {
 		form: { intent: 'redline-reply', redlineId: ':unknownId', body: 'Agreed.' },

@@ -124,6 +124,22 @@ async function workflowAction(
 	versionId: string,
 	formData: FormData,
 ) {
+	// The permission goes first, read from the raw intent, so that a role without it gets 403 whatever it sent;
+	// each branch below authorises again with the parsed values.
+	const intent = String(formData.get('intent') ?? '')
+	const step = String(formData.get('step') ?? '')
+	authorize(
+		context,
+		intent === 'workflow'
+			? step === 'submit' || step === 'withdraw'
+				? 'spec:edit'
+				: 'spec-version:sign'
+			: intent === 'redline-add'
+				? 'spec-version:sign'
+				: intent === 'redline-accept'
+					? 'spec:edit'
+					: 'spec:read',
+	)
 	const submission = parseWithZod(formData, { schema: WorkflowActionSchema })
 	if (submission.status !== 'success')
 		return data({ result: submission.reply(), bandProblems: [] as Array<BandRowProblem> }, { status: 400 })
