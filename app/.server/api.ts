@@ -9,6 +9,7 @@ import {
 } from '#app/.server/security/api-limits.ts'
 import { forwardedClientAddress } from '#app/.server/security/client-address.ts'
 import { markApiKeyUsed, resolveApiKey } from '#app/.server/services/api-keys.ts'
+import { clientAddress } from '#app/.server/services/audit.ts'
 import { type Actor, type ApiKeyScope, can, isReadOnly, type Permission } from '#shared/authz/permissions.ts'
 import { DomainError } from '#shared/errors.ts'
 
@@ -228,4 +229,16 @@ export function uuidParam(params: Record<string, string | undefined>, name: stri
 
 export function notFound(what: string): never {
 	throw new ApiProblem(404, `${what} was not found.`)
+}
+
+/** An inspector's API read, as the audit trail records it (see recordInspectionView). */
+export function viewOf(input: { actor: Actor; request: Request; now: Date }, versionId: string, purpose: string) {
+	return {
+		actor: input.actor,
+		versionId,
+		via: 'api' as const,
+		purpose,
+		ipAddress: clientAddress(input.request),
+		now: input.now,
+	}
 }

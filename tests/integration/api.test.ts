@@ -1,7 +1,8 @@
-import { eq } from 'drizzle-orm'
+import { and, eq } from 'drizzle-orm'
 import { expect, test } from 'vitest'
 import { db } from '#app/.server/db/client.ts'
 import { apiKeys } from '#app/.server/db/schema/api-keys.ts'
+import { auditEvents } from '#app/.server/db/schema/audit.ts'
 import type { buildOpenApiDocument } from '#app/.server/openapi.ts'
 import { createApiKey, revokeApiKey } from '#app/.server/services/api-keys.ts'
 import { createGrant } from '#app/.server/services/grants.ts'
@@ -152,6 +153,18 @@ test('[API-004] an inspector gets read keys only, and reads only versions their 
 	const response = await call(bandsLoader, get(`/versions/${signed.versionId}/bands`, token), params)
 	expect(response.status).toBe(200)
 	expect(((await response.json()) as { bands: Array<unknown> }).bands).toHaveLength(1)
+	const version = await call(versionLoader, get(`/versions/${signed.versionId}`, token), params)
+	expect(version.status).toBe(200)
+	expect(await version.json()).not.toHaveProperty('grantPurpose')
+	// PRODUCT.md §7: every view by an inspector is on record, through the API as through the pages.
+	const views = await db
+		.select({ after: auditEvents.after, actorId: auditEvents.actorId })
+		.from(auditEvents)
+		.where(and(eq(auditEvents.entityId, signed.versionId), eq(auditEvents.action, 'inspection.viewed')))
+	expect(views).toEqual([
+		{ actorId: inspector.id, after: { grant: 'Regulatory inspection', via: 'api' } },
+		{ actorId: inspector.id, after: { grant: 'Regulatory inspection', via: 'api' } },
+	])
 })
 
 test('[API-005] a script with a write key uploads a real spectrum and gets "conforms" against the effective version', async () => {

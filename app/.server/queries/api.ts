@@ -114,6 +114,8 @@ export async function visibleVersion(
 ) {
 	const versionId = input.params.versionId
 	if (!z.uuid().safeParse(versionId).success || !versionId) return null
-	if (input.byGrant && !(await inspectorAccess(db, input.actor.id, versionId, input.now))) return null
-	return getVersionWithContent(db, versionId)
+	const access = input.byGrant ? await inspectorAccess(db, input.actor.id, versionId, input.now) : null
+	if (input.byGrant && !access) return null
+	const version = await getVersionWithContent(db, versionId)
+	return version ? { ...version, grantPurpose: access?.purpose ?? null } : null
 }

@@ -196,6 +196,25 @@ export async function inspectorAccess(db: Db, inspectorId: string, versionId: st
 	return grant ? { purpose: grant.purpose, endsAt: grant.endsAt, specificationId: version.specificationId } : null
 }
 
+/**
+ * Puts an inspector's view of a released version on record (PRODUCT.md §7: every view and download by an
+ * inspector is audited), whether it came through a page or through the API.
+ */
+export async function recordInspectionView(
+	db: Db,
+	input: { actor: Actor; versionId: string; via: 'page' | 'api'; purpose: string; ipAddress: string | null; now: Date },
+): Promise<void> {
+	await recordAudit(db, {
+		actor: { id: input.actor.id, label: input.actor.email },
+		action: 'inspection.viewed',
+		entityType: 'spec-version',
+		entityId: input.versionId,
+		after: { grant: input.purpose, via: input.via },
+		ipAddress: input.ipAddress,
+		occurredAt: input.now,
+	})
+}
+
 /** Accounts that hold the inspector role (for the grant form). */
 export async function listInspectors(db: Db) {
 	return db

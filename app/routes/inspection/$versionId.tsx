@@ -6,8 +6,8 @@ import { db } from '#app/.server/db/client.ts'
 import { auditEvents } from '#app/.server/db/schema/audit.ts'
 import { getVersionWorkspace } from '#app/.server/queries/specifications.ts'
 import { getWorkflowView } from '#app/.server/queries/workflow.ts'
-import { clientAddress, recordAudit } from '#app/.server/services/audit.ts'
-import { inspectorAccess } from '#app/.server/services/grants.ts'
+import { clientAddress } from '#app/.server/services/audit.ts'
+import { inspectorAccess, recordInspectionView } from '#app/.server/services/grants.ts'
 import { CautionNote } from '#app/components/caution-note.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { buttonVariants } from '#app/components/ui/button.tsx'
@@ -38,14 +38,13 @@ export async function loader({ context, params, request }: Route.LoaderArgs) {
 		.orderBy(desc(auditEvents.id))
 		.limit(100)
 	// Every view by an inspector is on record (PRODUCT.md §7).
-	await recordAudit(db, {
-		actor: { id: actor.id, label: actor.email },
-		action: 'inspection.viewed',
-		entityType: 'spec-version',
-		entityId: params.versionId,
-		after: { grant: access.purpose },
+	await recordInspectionView(db, {
+		actor,
+		versionId: params.versionId,
+		via: 'page',
+		purpose: access.purpose,
 		ipAddress: clientAddress(request),
-		occurredAt: now,
+		now,
 	})
 	return {
 		specification: workspace.specification,

@@ -1,8 +1,12 @@
-import { apiRoute, notFound } from '#app/.server/api.ts'
+import { apiRoute, notFound, viewOf } from '#app/.server/api.ts'
 import { db } from '#app/.server/db/client.ts'
 import { visibleVersion } from '#app/.server/queries/api.ts'
+import { recordInspectionView } from '#app/.server/services/grants.ts'
 
 export const loader = apiRoute({ scope: 'read', permission: 'spec:read', inspectorsByGrant: true }, async (input) => {
 	const version = await visibleVersion(db, input)
-	return version ? Response.json(version) : notFound('The version')
+	if (!version) return notFound('The version')
+	const { grantPurpose, ...shown } = version
+	if (grantPurpose !== null) await recordInspectionView(db, viewOf(input, version.id, grantPurpose))
+	return Response.json(shown)
 })
