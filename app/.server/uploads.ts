@@ -1,6 +1,8 @@
 import { MaxFileSizeExceededError, MaxFilesExceededError, parseFormData } from '@remix-run/form-data-parser'
 import { data } from 'react-router'
 import { MAX_SPECTRUM_FILE_BYTES } from '#app/.server/services/spectra.ts'
+import { parseContainerOverrides } from '#shared/runs/container-mapping.ts'
+import { MAX_CONTAINERS_PER_RUN } from '#shared/runs/forms.ts'
 
 /** Most files accepted in one request of the plain (no-JavaScript) upload form. */
 export const MAX_FILES_PER_REQUEST = 50
@@ -31,4 +33,14 @@ export async function parseUpload(request: Request, options: { maxFiles?: number
 		}
 		throw error
 	}
+}
+
+/** The sample files of an identity-run form (lot or retest) with the analyst's container corrections. */
+export async function readRunUpload(request: Request) {
+	const formData = await parseUpload(request, { maxFiles: MAX_CONTAINERS_PER_RUN + 10 })
+	const chosen = formData.getAll('files').filter((value): value is File => value instanceof File && value.size > 0)
+	const files = await Promise.all(
+		chosen.map(async (file) => ({ fileName: file.name, bytes: new Uint8Array(await file.arrayBuffer()) })),
+	)
+	return { formData, files, overrides: parseContainerOverrides(formData.entries()) }
 }

@@ -34,6 +34,46 @@ export function FormErrors({ id, errors }: { id?: string; errors: ErrorList }) {
 const inputClass =
 	'block w-full rounded-md border border-rule-strong bg-sheet px-3 py-2 text-sm text-ink shadow-xs placeholder:text-ink-faint aria-[invalid=true]:border-danger'
 
+type ControlWiring = { id: string; invalid: boolean; describedBy: string | undefined }
+
+/** Label, hint and errors around one form control, with the ids that tie them to it (aria-describedby). */
+function LabelledControl({
+	label,
+	hint,
+	errors,
+	controlId,
+	className,
+	children,
+}: {
+	label: string
+	hint?: string
+	errors?: ErrorList
+	controlId: string | undefined
+	className?: string
+	children: (wiring: ControlWiring) => React.ReactNode
+}) {
+	const fallbackId = useId()
+	const id = controlId ?? fallbackId
+	const errorId = `${id}-error`
+	const hintId = hint ? `${id}-hint` : undefined
+	const invalid = Boolean(errors?.length)
+	const describedBy = [invalid ? errorId : null, hintId].filter(Boolean).join(' ') || undefined
+	return (
+		<div className={className}>
+			<label htmlFor={id} className="text-ink mb-1 block text-sm font-medium">
+				{label}
+			</label>
+			{children({ id, invalid, describedBy })}
+			{hint ? (
+				<p id={hintId} className="text-ink-faint mt-1 text-xs">
+					{hint}
+				</p>
+			) : null}
+			<FieldErrors id={errorId} errors={errors} />
+		</div>
+	)
+}
+
 /** A labelled text input with inline errors; pass Conform's getInputProps(...) as `inputProps`. */
 export function Field({
 	label,
@@ -48,30 +88,18 @@ export function Field({
 	inputProps: React.InputHTMLAttributes<HTMLInputElement>
 	className?: string
 }) {
-	const fallbackId = useId()
-	const id = inputProps.id ?? fallbackId
-	const errorId = `${id}-error`
-	const hintId = hint ? `${id}-hint` : undefined
-	const invalid = Boolean(errors?.length)
 	return (
-		<div className={className}>
-			<label htmlFor={id} className="text-ink mb-1 block text-sm font-medium">
-				{label}
-			</label>
-			<input
-				{...inputProps}
-				id={id}
-				className={cn(inputClass, inputProps.className)}
-				aria-invalid={invalid || undefined}
-				aria-describedby={[invalid ? errorId : null, hintId].filter(Boolean).join(' ') || undefined}
-			/>
-			{hint ? (
-				<p id={hintId} className="text-ink-faint mt-1 text-xs">
-					{hint}
-				</p>
-			) : null}
-			<FieldErrors id={errorId} errors={errors} />
-		</div>
+		<LabelledControl label={label} hint={hint} errors={errors} controlId={inputProps.id} className={className}>
+			{({ id, invalid, describedBy }) => (
+				<input
+					{...inputProps}
+					id={id}
+					className={cn(inputClass, inputProps.className)}
+					aria-invalid={invalid || undefined}
+					aria-describedby={describedBy}
+				/>
+			)}
+		</LabelledControl>
 	)
 }
 
@@ -89,25 +117,18 @@ export function TextareaField({
 	textareaProps: React.TextareaHTMLAttributes<HTMLTextAreaElement>
 	className?: string
 }) {
-	const fallbackId = useId()
-	const id = textareaProps.id ?? fallbackId
-	const errorId = `${id}-error`
-	const invalid = Boolean(errors?.length)
 	return (
-		<div className={className}>
-			<label htmlFor={id} className="text-ink mb-1 block text-sm font-medium">
-				{label}
-			</label>
-			<textarea
-				{...textareaProps}
-				id={id}
-				className={cn(inputClass, 'min-h-24')}
-				aria-invalid={invalid || undefined}
-				aria-describedby={invalid ? errorId : undefined}
-			/>
-			{hint ? <p className="text-ink-faint mt-1 text-xs">{hint}</p> : null}
-			<FieldErrors id={errorId} errors={errors} />
-		</div>
+		<LabelledControl label={label} hint={hint} errors={errors} controlId={textareaProps.id} className={className}>
+			{({ id, invalid, describedBy }) => (
+				<textarea
+					{...textareaProps}
+					id={id}
+					className={cn(inputClass, 'min-h-24')}
+					aria-invalid={invalid || undefined}
+					aria-describedby={describedBy}
+				/>
+			)}
+		</LabelledControl>
 	)
 }
 
@@ -129,37 +150,25 @@ export function SelectField({
 	placeholder?: string
 	className?: string
 }) {
-	const fallbackId = useId()
-	const id = selectProps.id ?? fallbackId
-	const errorId = `${id}-error`
-	const hintId = hint ? `${id}-hint` : undefined
-	const invalid = Boolean(errors?.length)
 	return (
-		<div className={className}>
-			<label htmlFor={id} className="text-ink mb-1 block text-sm font-medium">
-				{label}
-			</label>
-			<select
-				{...selectProps}
-				id={id}
-				className={cn(inputClass, selectProps.className)}
-				aria-invalid={invalid || undefined}
-				aria-describedby={[invalid ? errorId : null, hintId].filter(Boolean).join(' ') || undefined}
-			>
-				{placeholder ? <option value="">{placeholder}</option> : null}
-				{options.map((option) => (
-					<option key={option.value} value={option.value} disabled={option.disabled}>
-						{option.label}
-					</option>
-				))}
-			</select>
-			{hint ? (
-				<p id={hintId} className="text-ink-faint mt-1 text-xs">
-					{hint}
-				</p>
-			) : null}
-			<FieldErrors id={errorId} errors={errors} />
-		</div>
+		<LabelledControl label={label} hint={hint} errors={errors} controlId={selectProps.id} className={className}>
+			{({ id, invalid, describedBy }) => (
+				<select
+					{...selectProps}
+					id={id}
+					className={cn(inputClass, selectProps.className)}
+					aria-invalid={invalid || undefined}
+					aria-describedby={describedBy}
+				>
+					{placeholder ? <option value="">{placeholder}</option> : null}
+					{options.map((option) => (
+						<option key={option.value} value={option.value} disabled={option.disabled}>
+							{option.label}
+						</option>
+					))}
+				</select>
+			)}
+		</LabelledControl>
 	)
 }
 

@@ -27,6 +27,11 @@ import { importSpectrum } from '#shared/spectra/import.ts'
 import { toAcceptanceCriteria } from '#shared/specs/version-content.ts'
 
 /** A refused run with one plain line per problem (which file, which container), so the form can list them all. */
+/** Every line a refusal of a run should show: its message, then each problem (file, container) it names. */
+export function refusalLines(error: DomainError): Array<string> {
+	return [error.message, ...(error instanceof RunInputRefused ? error.problems : [])]
+}
+
 export class RunInputRefused extends DomainError {
 	constructor(
 		message: string,

@@ -7,14 +7,19 @@ export function ListTable({
 	headers,
 	children,
 	caption,
+	className,
+	testId,
 }: {
 	headers: Array<Header>
 	children: React.ReactNode
 	caption?: string
+	/** Spacing around the frame, e.g. 'mb-6'. */
+	className?: string
+	testId?: string
 }) {
 	return (
-		<div className="bg-sheet border-rule overflow-x-auto rounded-lg border">
-			<table className="w-full text-sm">
+		<div className={cn('bg-sheet border-rule overflow-x-auto rounded-lg border', className)}>
+			<table className="w-full text-sm" data-testid={testId}>
 				{caption ? <caption className="sr-only">{caption}</caption> : null}
 				<thead className="border-rule bg-paper border-b">
 					<tr>

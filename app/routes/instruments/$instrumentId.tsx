@@ -10,6 +10,7 @@ import { FormErrors, inputClass } from '#app/components/forms.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { ReadinessBadge } from '#app/components/run-badges.tsx'
 import { Button, buttonVariants } from '#app/components/ui/button.tsx'
+import { ListTable } from '#app/components/ui/list-table.tsx'
 import { PageHeader } from '#app/components/ui/page-header.tsx'
 import { StatusBadge } from '#app/components/ui/status-badge.tsx'
 import { cn, formatUtc } from '#app/utils/misc.ts'
@@ -167,47 +168,31 @@ export default function InstrumentPage({ loaderData, actionData }: Route.Compone
 						</Link>
 						.
 					</p>
-					<div className="bg-sheet border-rule overflow-x-auto rounded-lg border">
-						<table className="w-full text-sm" data-testid="check-bands">
-							<caption className="sr-only">Band positions of the latest check</caption>
-							<thead className="border-rule bg-paper border-b">
-								<tr>
-									<th scope="col" className="px-3 py-2 text-right font-semibold">
-										Nominal, cm⁻¹
-									</th>
-									<th scope="col" className="px-3 py-2 text-right font-semibold">
-										Observed, cm⁻¹
-									</th>
-									<th scope="col" className="px-3 py-2 text-right font-semibold">
-										Deviation
-									</th>
-									<th scope="col" className="px-3 py-2 text-right font-semibold">
-										Tolerance
-									</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">
-										Located by
-									</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">
-										Result
-									</th>
-								</tr>
-							</thead>
-							<tbody>
-								{latest.result.bands.map((band) => (
-									<tr key={band.nominal} className="border-rule border-b last:border-0">
-										<td className="px-3 py-2 text-right tabular-nums">{band.nominal.toFixed(1)}</td>
-										<td className="px-3 py-2 text-right tabular-nums">{band.observed?.toFixed(1) ?? '—'}</td>
-										<td className="px-3 py-2 text-right tabular-nums">{signed(band.deviation)}</td>
-										<td className="px-3 py-2 text-right tabular-nums">±{band.tolerance.toFixed(1)}</td>
-										<td className="px-3 py-2">{band.method.replace('-', ' ')}</td>
-										<td className="px-3 py-2">
-											<StatusBadge tone={band.pass ? 'good' : 'danger'}>{band.pass ? 'Within' : 'Outside'}</StatusBadge>
-										</td>
-									</tr>
-								))}
-							</tbody>
-						</table>
-					</div>
+					<ListTable
+						headers={[
+							{ label: 'Nominal, cm⁻¹', align: 'right' },
+							{ label: 'Observed, cm⁻¹', align: 'right' },
+							{ label: 'Deviation', align: 'right' },
+							{ label: 'Tolerance', align: 'right' },
+							'Located by',
+							'Result',
+						]}
+						caption="Band positions of the latest check"
+						testId="check-bands"
+					>
+						{latest.result.bands.map((band) => (
+							<tr key={band.nominal} className="border-rule border-b last:border-0">
+								<td className="px-3 py-2 text-right tabular-nums">{band.nominal.toFixed(1)}</td>
+								<td className="px-3 py-2 text-right tabular-nums">{band.observed?.toFixed(1) ?? '—'}</td>
+								<td className="px-3 py-2 text-right tabular-nums">{signed(band.deviation)}</td>
+								<td className="px-3 py-2 text-right tabular-nums">±{band.tolerance.toFixed(1)}</td>
+								<td className="px-3 py-2">{band.method.replace('-', ' ')}</td>
+								<td className="px-3 py-2">
+									<StatusBadge tone={band.pass ? 'good' : 'danger'}>{band.pass ? 'Within' : 'Outside'}</StatusBadge>
+								</td>
+							</tr>
+						))}
+					</ListTable>
 					{latest.result.reasons.length ? (
 						<ul className="text-danger mt-3 list-disc pl-5 text-sm">
 							{latest.result.reasons.map((reason) => (
@@ -226,46 +211,25 @@ export default function InstrumentPage({ loaderData, actionData }: Route.Compone
 				{checks.length === 0 ? (
 					<p className="text-ink-soft text-sm">No check recorded yet.</p>
 				) : (
-					<div className="bg-sheet border-rule overflow-x-auto rounded-lg border">
-						<table className="w-full text-sm">
-							<thead className="border-rule bg-paper border-b">
-								<tr>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">
-										Performed
-									</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">
-										By
-									</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">
-										Result
-									</th>
-									<th scope="col" className="px-3 py-2 text-right font-semibold">
-										Largest deviation
-									</th>
-									<th scope="col" className="px-3 py-2 text-left font-semibold">
-										Valid until
-									</th>
-								</tr>
-							</thead>
-							<tbody>
-								{checks.map((check) => (
-									<tr key={check.id} className="border-rule border-b last:border-0">
-										<td className="px-3 py-2 tabular-nums">{formatUtc(check.performedAt)}</td>
-										<td className="px-3 py-2">{check.performedBy}</td>
-										<td className="px-3 py-2">
-											<StatusBadge tone={check.passed ? 'good' : 'danger'}>
-												{check.passed ? 'Passed' : 'Failed'}
-											</StatusBadge>
-										</td>
-										<td className="px-3 py-2 text-right tabular-nums">
-											{Math.max(0, ...check.result.bands.map((band) => Math.abs(band.deviation ?? 0))).toFixed(1)} cm⁻¹
-										</td>
-										<td className="px-3 py-2 tabular-nums">{check.passed ? day(check.validUntil) : '—'}</td>
-									</tr>
-								))}
-							</tbody>
-						</table>
-					</div>
+					<ListTable
+						headers={['Performed', 'By', 'Result', { label: 'Largest deviation', align: 'right' }, 'Valid until']}
+					>
+						{checks.map((check) => (
+							<tr key={check.id} className="border-rule border-b last:border-0">
+								<td className="px-3 py-2 tabular-nums">{formatUtc(check.performedAt)}</td>
+								<td className="px-3 py-2">{check.performedBy}</td>
+								<td className="px-3 py-2">
+									<StatusBadge tone={check.passed ? 'good' : 'danger'}>
+										{check.passed ? 'Passed' : 'Failed'}
+									</StatusBadge>
+								</td>
+								<td className="px-3 py-2 text-right tabular-nums">
+									{Math.max(0, ...check.result.bands.map((band) => Math.abs(band.deviation ?? 0))).toFixed(1)} cm⁻¹
+								</td>
+								<td className="px-3 py-2 tabular-nums">{check.passed ? day(check.validUntil) : '—'}</td>
+							</tr>
+						))}
+					</ListTable>
 				)}
 			</section>
 		</>

@@ -7,6 +7,7 @@ import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx
 import { ReadinessBadge } from '#app/components/run-badges.tsx'
 import { buttonVariants } from '#app/components/ui/button.tsx'
 import { EmptyState } from '#app/components/ui/empty-state.tsx'
+import { ListTable } from '#app/components/ui/list-table.tsx'
 import { PageHeader } from '#app/components/ui/page-header.tsx'
 import { can } from '#shared/authz/permissions.ts'
 
@@ -52,53 +53,29 @@ export default function Instruments({ loaderData }: Route.ComponentProps) {
 						: 'Analysts register instruments here.'}
 				</EmptyState>
 			) : (
-				<div className="bg-sheet border-rule overflow-x-auto rounded-lg border">
-					<table className="w-full text-sm">
-						<caption className="sr-only">Instruments and the state of their polystyrene checks</caption>
-						<thead className="border-rule bg-paper border-b">
-							<tr>
-								<th scope="col" className="px-3 py-2 text-left font-semibold">
-									Code
-								</th>
-								<th scope="col" className="px-3 py-2 text-left font-semibold">
-									Instrument
-								</th>
-								<th scope="col" className="px-3 py-2 text-left font-semibold">
-									Location
-								</th>
-								<th scope="col" className="px-3 py-2 text-left font-semibold">
-									Last check
-								</th>
-								<th scope="col" className="px-3 py-2 text-left font-semibold">
-									Valid until
-								</th>
-								<th scope="col" className="px-3 py-2 text-left font-semibold">
-									Status
-								</th>
-							</tr>
-						</thead>
-						<tbody>
-							{rows.map((row) => (
-								<tr key={row.id} className="border-rule hover:bg-paper border-b last:border-0">
-									<td className="px-3 py-2 font-medium">
-										<Link to={`/instruments/${row.id}`} className="text-accent underline-offset-4 hover:underline">
-											{row.code}
-										</Link>
-									</td>
-									<td className="px-3 py-2">{row.name}</td>
-									<td className="px-3 py-2">{row.location ?? '—'}</td>
-									<td className="px-3 py-2 tabular-nums">
-										{row.latest ? `${day(row.latest.performedAt)} · ${row.latest.passed ? 'passed' : 'failed'}` : '—'}
-									</td>
-									<td className="px-3 py-2 tabular-nums">{row.latest?.passed ? day(row.latest.validUntil) : '—'}</td>
-									<td className="px-3 py-2" title={row.message}>
-										<ReadinessBadge readiness={row.readiness} />
-									</td>
-								</tr>
-							))}
-						</tbody>
-					</table>
-				</div>
+				<ListTable
+					headers={['Code', 'Instrument', 'Location', 'Last check', 'Valid until', 'Status']}
+					caption="Instruments and the state of their polystyrene checks"
+				>
+					{rows.map((row) => (
+						<tr key={row.id} className="border-rule hover:bg-paper border-b last:border-0">
+							<td className="px-3 py-2 font-medium">
+								<Link to={`/instruments/${row.id}`} className="text-accent underline-offset-4 hover:underline">
+									{row.code}
+								</Link>
+							</td>
+							<td className="px-3 py-2">{row.name}</td>
+							<td className="px-3 py-2">{row.location ?? '—'}</td>
+							<td className="px-3 py-2 tabular-nums">
+								{row.latest ? `${day(row.latest.performedAt)} · ${row.latest.passed ? 'passed' : 'failed'}` : '—'}
+							</td>
+							<td className="px-3 py-2 tabular-nums">{row.latest?.passed ? day(row.latest.validUntil) : '—'}</td>
+							<td className="px-3 py-2" title={row.message}>
+								<ReadinessBadge readiness={row.readiness} />
+							</td>
+						</tr>
+					))}
+				</ListTable>
 			)}
 		</>
 	)

@@ -8,6 +8,7 @@ import { CautionNote } from '#app/components/caution-note.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { DispositionBadge, OutcomeBadge, RunStateBadge } from '#app/components/run-badges.tsx'
 import { buttonVariants } from '#app/components/ui/button.tsx'
+import { ListTable } from '#app/components/ui/list-table.tsx'
 import { PageHeader } from '#app/components/ui/page-header.tsx'
 import { formatUtc } from '#app/utils/misc.ts'
 import { CONCLUSION_LABELS } from '#shared/runs/run-rules.ts'
@@ -57,71 +58,43 @@ export default function LotPage({ loaderData }: Route.ComponentProps) {
 				</div>
 			</dl>
 			<h2 className="mb-2 text-lg font-semibold">Runs</h2>
-			<div className="bg-sheet border-rule mb-6 overflow-x-auto rounded-lg border">
-				<table className="w-full text-sm">
-					<caption className="sr-only">Identity runs of this lot, oldest first</caption>
-					<thead className="border-rule bg-paper border-b">
-						<tr>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">
-								Run
-							</th>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">
-								Recorded
-							</th>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">
-								Analyst
-							</th>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">
-								Instrument
-							</th>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">
-								Specification
-							</th>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">
-								Outcome
-							</th>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">
-								Signatures
-							</th>
-						</tr>
-					</thead>
-					<tbody>
-						{runs.map((run) => (
-							<tr key={run.id} className="border-rule border-b align-top last:border-0">
-								<td className="px-3 py-2 font-medium">
-									<Link to={`/runs/${run.id}`} className="text-accent underline-offset-4 hover:underline">
-										{run.runNumber}
-									</Link>
-									{run.retestOfId ? (
-										<span className="text-ink-soft block text-xs font-normal">
-											retest of {runNumber.get(run.retestOfId) ?? 'an earlier run'}
-										</span>
-									) : null}
-								</td>
-								<td className="px-3 py-2 tabular-nums">{formatUtc(run.recordedAt)}</td>
-								<td className="px-3 py-2">{run.recordedByName}</td>
-								<td className="px-3 py-2">{run.instrumentCode}</td>
-								<td className="px-3 py-2">
-									{run.documentNumber} v{run.versionNumber}
-								</td>
-								<td className="px-3 py-2">
-									<OutcomeBadge outcome={run.outcome} />
-									{run.investigationConclusion ? (
-										<span className="text-ink-soft block text-xs">
-											{CONCLUSION_LABELS[run.investigationConclusion]}
-										</span>
-									) : run.outcome === 'flagged' ? (
-										<span className="text-ink-soft block text-xs">Investigation open</span>
-									) : null}
-								</td>
-								<td className="px-3 py-2">
-									<RunStateBadge state={run.state} />
-								</td>
-							</tr>
-						))}
-					</tbody>
-				</table>
-			</div>
+			<ListTable
+				headers={['Run', 'Recorded', 'Analyst', 'Instrument', 'Specification', 'Outcome', 'Signatures']}
+				caption="Identity runs of this lot, oldest first"
+				className="mb-6"
+			>
+				{runs.map((run) => (
+					<tr key={run.id} className="border-rule border-b align-top last:border-0">
+						<td className="px-3 py-2 font-medium">
+							<Link to={`/runs/${run.id}`} className="text-accent underline-offset-4 hover:underline">
+								{run.runNumber}
+							</Link>
+							{run.retestOfId ? (
+								<span className="text-ink-soft block text-xs font-normal">
+									retest of {runNumber.get(run.retestOfId) ?? 'an earlier run'}
+								</span>
+							) : null}
+						</td>
+						<td className="px-3 py-2 tabular-nums">{formatUtc(run.recordedAt)}</td>
+						<td className="px-3 py-2">{run.recordedByName}</td>
+						<td className="px-3 py-2">{run.instrumentCode}</td>
+						<td className="px-3 py-2">
+							{run.documentNumber} v{run.versionNumber}
+						</td>
+						<td className="px-3 py-2">
+							<OutcomeBadge outcome={run.outcome} />
+							{run.investigationConclusion ? (
+								<span className="text-ink-soft block text-xs">{CONCLUSION_LABELS[run.investigationConclusion]}</span>
+							) : run.outcome === 'flagged' ? (
+								<span className="text-ink-soft block text-xs">Investigation open</span>
+							) : null}
+						</td>
+						<td className="px-3 py-2">
+							<RunStateBadge state={run.state} />
+						</td>
+					</tr>
+				))}
+			</ListTable>
 			<CautionNote className="max-w-4xl" />
 		</>
 	)

@@ -7,6 +7,7 @@ import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx
 import { DispositionBadge } from '#app/components/run-badges.tsx'
 import { buttonVariants } from '#app/components/ui/button.tsx'
 import { EmptyState } from '#app/components/ui/empty-state.tsx'
+import { ListTable } from '#app/components/ui/list-table.tsx'
 import { PageHeader } from '#app/components/ui/page-header.tsx'
 import { formatUtc } from '#app/utils/misc.ts'
 import { can } from '#shared/authz/permissions.ts'
@@ -36,59 +37,38 @@ export default function Lots({ loaderData }: Route.ComponentProps) {
 					{canRecord ? 'Record the first lot with one sample spectrum per container.' : 'Analysts record lots here.'}
 				</EmptyState>
 			) : (
-				<div className="bg-sheet border-rule overflow-x-auto rounded-lg border">
-					<table className="w-full text-sm">
-						<caption className="sr-only">Lots, newest first</caption>
-						<thead className="border-rule bg-paper border-b">
-							<tr>
-								<th scope="col" className="px-3 py-2 text-left font-semibold">
-									Lot
-								</th>
-								<th scope="col" className="px-3 py-2 text-left font-semibold">
-									Material
-								</th>
-								<th scope="col" className="px-3 py-2 text-left font-semibold">
-									Supplier
-								</th>
-								<th scope="col" className="px-3 py-2 text-right font-semibold">
-									Containers
-								</th>
-								<th scope="col" className="px-3 py-2 text-right font-semibold">
-									Runs
-								</th>
-								<th scope="col" className="px-3 py-2 text-left font-semibold">
-									Last run
-								</th>
-								<th scope="col" className="px-3 py-2 text-left font-semibold">
-									Identity
-								</th>
-							</tr>
-						</thead>
-						<tbody>
-							{lots.map((lot) => (
-								<tr key={lot.id} className="border-rule hover:bg-paper border-b last:border-0">
-									<td className="px-3 py-2 font-medium">
-										<Link to={`/lots/${lot.id}`} className="text-accent underline-offset-4 hover:underline">
-											{lot.lotNumber}
-										</Link>
-									</td>
-									<td className="px-3 py-2">
-										{lot.materialCode} · {lot.materialName}
-									</td>
-									<td className="px-3 py-2">{lot.supplier}</td>
-									<td className="px-3 py-2 text-right tabular-nums">{lot.containerCount}</td>
-									<td className="px-3 py-2 text-right tabular-nums">{lot.runCount}</td>
-									<td className="text-ink-soft px-3 py-2 tabular-nums">
-										{lot.lastRunAt ? formatUtc(lot.lastRunAt) : '—'}
-									</td>
-									<td className="px-3 py-2">
-										<DispositionBadge disposition={lot.disposition} />
-									</td>
-								</tr>
-							))}
-						</tbody>
-					</table>
-				</div>
+				<ListTable
+					headers={[
+						'Lot',
+						'Material',
+						'Supplier',
+						{ label: 'Containers', align: 'right' },
+						{ label: 'Runs', align: 'right' },
+						'Last run',
+						'Identity',
+					]}
+					caption="Lots, newest first"
+				>
+					{lots.map((lot) => (
+						<tr key={lot.id} className="border-rule hover:bg-paper border-b last:border-0">
+							<td className="px-3 py-2 font-medium">
+								<Link to={`/lots/${lot.id}`} className="text-accent underline-offset-4 hover:underline">
+									{lot.lotNumber}
+								</Link>
+							</td>
+							<td className="px-3 py-2">
+								{lot.materialCode} · {lot.materialName}
+							</td>
+							<td className="px-3 py-2">{lot.supplier}</td>
+							<td className="px-3 py-2 text-right tabular-nums">{lot.containerCount}</td>
+							<td className="px-3 py-2 text-right tabular-nums">{lot.runCount}</td>
+							<td className="text-ink-soft px-3 py-2 tabular-nums">{lot.lastRunAt ? formatUtc(lot.lastRunAt) : '—'}</td>
+							<td className="px-3 py-2">
+								<DispositionBadge disposition={lot.disposition} />
+							</td>
+						</tr>
+					))}
+				</ListTable>
 			)}
 		</>
 	)

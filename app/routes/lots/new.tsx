@@ -4,17 +4,16 @@ import { data, Form, Link, useNavigation } from 'react-router'
 import type { Route } from './+types/new'
 import { authorize } from '#app/.server/context.ts'
 import { db } from '#app/.server/db/client.ts'
-import { listTestableSpecifications, recordIdentityRun, RunInputRefused } from '#app/.server/services/identity-runs.ts'
+import { listTestableSpecifications, recordIdentityRun, refusalLines } from '#app/.server/services/identity-runs.ts'
 import { listInstruments } from '#app/.server/services/instruments.ts'
 import { redirectWithToast } from '#app/.server/toast.ts'
-import { parseUpload } from '#app/.server/uploads.ts'
+import { readRunUpload } from '#app/.server/uploads.ts'
 import { CautionNote } from '#app/components/caution-note.tsx'
 import { ContainerFilesField } from '#app/components/container-files-field.tsx'
 import { Field, FormErrors, SelectField } from '#app/components/forms.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { Button, buttonVariants } from '#app/components/ui/button.tsx'
 import { PageHeader } from '#app/components/ui/page-header.tsx'
-import { parseContainerOverrides } from '#shared/runs/container-mapping.ts'
 import { LotRunFormSchema, MAX_CONTAINERS_PER_RUN } from '#shared/runs/forms.ts'
 
 const NOT_USABLE = {
@@ -45,10 +44,9 @@ export async function loader({ context }: Route.LoaderArgs) {
 
 export async function action({ request, context }: Route.ActionArgs) {
 	const actor = authorize(context, 'run:record')
-	const formData = await parseUpload(request, { maxFiles: MAX_CONTAINERS_PER_RUN + 10 })
+	const { formData, files, overrides } = await readRunUpload(request)
 	const submission = parseWithZod(formData, { schema: LotRunFormSchema })
 	if (submission.status !== 'success') return data({ result: submission.reply() }, { status: 400 })
-	const files = formData.getAll('files').filter((value): value is File => value instanceof File && value.size > 0)
 	if (files.length === 0) {
 		return data(
 			{ result: submission.reply({ formErrors: ['Choose the sample spectra, one file per container.'] }) },
@@ -62,16 +60,13 @@ export async function action({ request, context }: Route.ActionArgs) {
 		specificationId,
 		lot,
 		instrumentId,
-		files: await Promise.all(
-			files.map(async (file) => ({ fileName: file.name, bytes: new Uint8Array(await file.arrayBuffer()) })),
-		),
-		overrides: parseContainerOverrides(formData.entries()),
+		files,
+		overrides,
 		now: new Date(),
 	})
 	if (!outcome.ok) {
-		const problems = outcome.error instanceof RunInputRefused ? outcome.error.problems : []
 		return data(
-			{ result: submission.reply({ formErrors: [outcome.error.message, ...problems] }) },
+			{ result: submission.reply({ formErrors: refusalLines(outcome.error) }) },
 			{ status: outcome.error.status },
 		)
 	}

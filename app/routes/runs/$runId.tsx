@@ -13,6 +13,7 @@ import { FormErrors, inputClass } from '#app/components/forms.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { OutcomeBadge, RunStateBadge, VerdictBadge } from '#app/components/run-badges.tsx'
 import { Button, buttonVariants } from '#app/components/ui/button.tsx'
+import { ListTable } from '#app/components/ui/list-table.tsx'
 import { PageHeader } from '#app/components/ui/page-header.tsx'
 import { cn, formatUtc } from '#app/utils/misc.ts'
 import { can } from '#shared/authz/permissions.ts'
@@ -248,85 +249,68 @@ export default function RunPage({ loaderData, actionData }: Route.ComponentProps
 			</dl>
 
 			<h2 className="mb-2 text-lg font-semibold">Containers</h2>
-			<div className="bg-sheet border-rule mb-6 overflow-x-auto rounded-lg border">
-				<table className="w-full text-sm" data-testid="containers">
-					<caption className="sr-only">Verdict of every container, with the numbers behind it</caption>
-					<thead className="border-rule bg-paper border-b">
-						<tr>
-							<th scope="col" className="px-3 py-2 text-right font-semibold">
-								Container
-							</th>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">
-								Sample file
-							</th>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">
-								Verdict
-							</th>
-							<th scope="col" className="px-3 py-2 text-right font-semibold">
-								Correlation
-							</th>
-							<th scope="col" className="px-3 py-2 text-right font-semibold">
-								Derivative
-							</th>
-							<th scope="col" className="px-3 py-2 text-right font-semibold">
-								Bands within tolerance
-							</th>
-							<th scope="col" className="px-3 py-2 text-left font-semibold">
-								Why
-							</th>
+			<ListTable
+				headers={[
+					{ label: 'Container', align: 'right' },
+					'Sample file',
+					'Verdict',
+					{ label: 'Correlation', align: 'right' },
+					{ label: 'Derivative', align: 'right' },
+					{ label: 'Bands within tolerance', align: 'right' },
+					'Why',
+				]}
+				caption="Verdict of every container, with the numbers behind it"
+				className="mb-6"
+				testId="containers"
+			>
+				{containers.map((row) => {
+					const result = row.result as unknown as StoredComparison
+					const within = result.bands.filter((band) => band.withinTolerance).length
+					return (
+						<tr key={row.id} className="border-rule border-b align-top last:border-0">
+							<td className="px-3 py-2 text-right font-medium tabular-nums">
+								<Link
+									to={`/runs/${run.id}/containers/${row.containerNumber}`}
+									className="text-accent underline-offset-4 hover:underline"
+									aria-label={`Evidence of container ${row.containerNumber}`}
+								>
+									{row.containerNumber}
+								</Link>
+							</td>
+							<td className="px-3 py-2 whitespace-nowrap">{row.fileName}</td>
+							<td className="px-3 py-2">
+								<VerdictBadge verdict={row.verdict} />
+							</td>
+							<td
+								className={cn(
+									'px-3 py-2 text-right tabular-nums',
+									row.correlation !== null && row.correlation < threshold && 'text-danger font-semibold',
+								)}
+							>
+								{fixed(row.correlation)}
+							</td>
+							<td className="px-3 py-2 text-right tabular-nums">{fixed(row.derivativeCorrelation)}</td>
+							<td className="px-3 py-2 text-right tabular-nums">
+								{within} / {result.bands.length}
+							</td>
+							<td className="text-ink-soft max-w-md px-3 py-2">
+								{result.reasons.length === 0 ? (
+									'—'
+								) : (
+									<>
+										{result.reasons[0]}
+										{result.reasons.length > 1 ? (
+											<span className="block text-xs">
+												and {result.reasons.length - 1} more on the container's page
+											</span>
+										) : null}
+									</>
+								)}
+							</td>
 						</tr>
-					</thead>
-					<tbody>
-						{containers.map((row) => {
-							const result = row.result as unknown as StoredComparison
-							const within = result.bands.filter((band) => band.withinTolerance).length
-							return (
-								<tr key={row.id} className="border-rule border-b align-top last:border-0">
-									<td className="px-3 py-2 text-right font-medium tabular-nums">
-										<Link
-											to={`/runs/${run.id}/containers/${row.containerNumber}`}
-											className="text-accent underline-offset-4 hover:underline"
-											aria-label={`Evidence of container ${row.containerNumber}`}
-										>
-											{row.containerNumber}
-										</Link>
-									</td>
-									<td className="px-3 py-2 whitespace-nowrap">{row.fileName}</td>
-									<td className="px-3 py-2">
-										<VerdictBadge verdict={row.verdict} />
-									</td>
-									<td
-										className={cn(
-											'px-3 py-2 text-right tabular-nums',
-											row.correlation !== null && row.correlation < threshold && 'text-danger font-semibold',
-										)}
-									>
-										{fixed(row.correlation)}
-									</td>
-									<td className="px-3 py-2 text-right tabular-nums">{fixed(row.derivativeCorrelation)}</td>
-									<td className="px-3 py-2 text-right tabular-nums">
-										{within} / {result.bands.length}
-									</td>
-									<td className="text-ink-soft max-w-md px-3 py-2">
-										{result.reasons.length === 0 ? (
-											'—'
-										) : (
-											<>
-												{result.reasons[0]}
-												{result.reasons.length > 1 ? (
-													<span className="block text-xs">
-														and {result.reasons.length - 1} more on the container's page
-													</span>
-												) : null}
-											</>
-										)}
-									</td>
-								</tr>
-							)
-						})}
-					</tbody>
-				</table>
-			</div>
+					)
+				})}
+			</ListTable>
 
 			<h2 className="mb-2 text-lg font-semibold">Signatures</h2>
 			{signatures.length === 0 ? (

@@ -6,18 +6,17 @@ import type { Route } from './+types/retest'
 import { authorize } from '#app/.server/context.ts'
 import { db } from '#app/.server/db/client.ts'
 import { getRun } from '#app/.server/queries/runs.ts'
-import { recordIdentityRun, RunInputRefused } from '#app/.server/services/identity-runs.ts'
+import { recordIdentityRun, refusalLines } from '#app/.server/services/identity-runs.ts'
 import { listInstruments } from '#app/.server/services/instruments.ts'
 import { redirectWithToast } from '#app/.server/toast.ts'
-import { parseUpload } from '#app/.server/uploads.ts'
+import { readRunUpload } from '#app/.server/uploads.ts'
 import { CautionNote } from '#app/components/caution-note.tsx'
 import { ContainerFilesField } from '#app/components/container-files-field.tsx'
 import { FormErrors, SelectField, TextareaField } from '#app/components/forms.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { Button, buttonVariants } from '#app/components/ui/button.tsx'
 import { PageHeader } from '#app/components/ui/page-header.tsx'
-import { parseContainerOverrides } from '#shared/runs/container-mapping.ts'
-import { MAX_CONTAINERS_PER_RUN, RetestFormSchema } from '#shared/runs/forms.ts'
+import { RetestFormSchema } from '#shared/runs/forms.ts'
 import { decideRetest } from '#shared/runs/run-rules.ts'
 
 async function originalRun(params: { runId: string }) {
@@ -59,10 +58,9 @@ export async function loader({ context, params }: Route.LoaderArgs) {
 export async function action({ request, context, params }: Route.ActionArgs) {
 	const actor = authorize(context, 'run:record')
 	const found = await originalRun(params)
-	const formData = await parseUpload(request, { maxFiles: MAX_CONTAINERS_PER_RUN + 10 })
+	const { formData, files, overrides } = await readRunUpload(request)
 	const submission = parseWithZod(formData, { schema: RetestFormSchema })
 	if (submission.status !== 'success') return data({ result: submission.reply() }, { status: 400 })
-	const files = formData.getAll('files').filter((value): value is File => value instanceof File && value.size > 0)
 	if (files.length === 0) {
 		return data(
 			{ result: submission.reply({ formErrors: ['Choose the new sample spectra, one file per container.'] }) },
@@ -75,16 +73,13 @@ export async function action({ request, context, params }: Route.ActionArgs) {
 		retestOfId: found.run.id,
 		reason: submission.value.retestReason,
 		instrumentId: submission.value.instrumentId,
-		files: await Promise.all(
-			files.map(async (file) => ({ fileName: file.name, bytes: new Uint8Array(await file.arrayBuffer()) })),
-		),
-		overrides: parseContainerOverrides(formData.entries()),
+		files,
+		overrides,
 		now: new Date(),
 	})
 	if (!outcome.ok) {
-		const problems = outcome.error instanceof RunInputRefused ? outcome.error.problems : []
 		return data(
-			{ result: submission.reply({ formErrors: [outcome.error.message, ...problems] }) },
+			{ result: submission.reply({ formErrors: refusalLines(outcome.error) }) },
 			{ status: outcome.error.status },
 		)
 	}
