@@ -3,6 +3,7 @@ import { drizzleAdapter } from 'better-auth/adapters/drizzle'
 import { APIError, createAuthMiddleware } from 'better-auth/api'
 import { verifyPassword } from 'better-auth/crypto'
 import { and, eq, sql } from 'drizzle-orm'
+import { z } from 'zod'
 import { db } from '#app/.server/db/client.ts'
 import { accounts, sessions, users, verifications } from '#app/.server/db/schema/auth.ts'
 import { env } from '#app/.server/env.ts'
@@ -97,6 +98,8 @@ function createAuth() {
 				const refusedBeforeTrying =
 					returned instanceof APIError && ['ACCOUNT_BLOCKED', 'RATE_LIMITED'].includes(returned.body?.code ?? '')
 				if (refusedBeforeTrying) return
+				// A request without an e-mail address at all is a malformed request, not a sign-in attempt on anyone.
+				if (!z.email().safeParse(email).success) return
 				await recordFailedSignIn(email, ipAddress)
 			}),
 		},

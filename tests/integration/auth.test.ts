@@ -145,3 +145,24 @@ test('[AUTH-017] role changes are audited with the roles before and after; an ad
 	const selfDemotion = await setUserRoles(db, { actor: admin, userId: admin.id, roles: ['author'], now: new Date() })
 	expect(selfDemotion.ok).toBe(false)
 })
+
+test('[AUTH-020] a sign-in request without an e-mail address is refused and puts no failed sign-in on record', async () => {
+	const before = await db
+		.select({ id: auditEvents.id })
+		.from(auditEvents)
+		.where(eq(auditEvents.action, 'user.sign-in-failed'))
+	const refused = await auth().handler(
+		new Request('http://localhost:3999/api/auth/sign-in/email', {
+			method: 'POST',
+			headers: { 'Content-Type': 'application/json', Origin: 'http://localhost:3999' },
+			body: '{}',
+		}),
+	)
+	expect(refused.status).toBeGreaterThanOrEqual(400)
+	expect(refused.status).toBeLessThan(500)
+	const after = await db
+		.select({ id: auditEvents.id })
+		.from(auditEvents)
+		.where(eq(auditEvents.action, 'user.sign-in-failed'))
+	expect(after).toHaveLength(before.length)
+})
