@@ -52,9 +52,12 @@ export type RunEvent =
 
 export type RunStep = { next: RunState; signature: RunSignatureMeaning | null }
 
-/** Decides one step of a run for one actor; the reason in plain words when refused. */
-export function decideRunStep(run: RunSnapshot, event: RunEvent, actor: Actor): Result<RunStep, DomainError> {
-	switch (event.type) {
+/**
+ * Whether this actor may take this kind of step on the run now: every rule but the written text, so that a page can
+ * offer exactly the steps the server will accept. The reason in plain words when not.
+ */
+export function runStepPermitted(run: RunSnapshot, type: RunEvent['type'], actor: Actor): Result<RunStep, DomainError> {
+	switch (type) {
 		case 'sign-performed':
 			if (!can(actor, 'run:record')) return err(new Forbidden('Only analysts sign identity runs as performed.'))
 			if (run.state !== 'recorded') return err(new DomainError('This run is already signed as performed.', 409))
@@ -80,25 +83,37 @@ export function decideRunStep(run: RunSnapshot, event: RunEvent, actor: Actor): 
 			if (run.investigationConclusion) return err(new DomainError('This investigation is already concluded.', 409))
 			if (actor.id === run.recordedBy || actor.id === run.performedBy)
 				return err(new Forbidden('The analyst who performed the run cannot conclude its investigation.'))
-			if (event.summary.trim().length < MIN_RUN_TEXT_LENGTH)
-				return err(
-					new DomainError(`Write the investigation summary (at least ${MIN_RUN_TEXT_LENGTH} characters).`, 422),
-				)
 			return ok({ next: run.state, signature: null })
 	}
 }
 
-/** Whether a retest of `original` may be recorded; a retest always needs a written reason. */
-export function decideRetest(original: RunSnapshot, reason: string): Result<true, DomainError> {
+/** Decides one step of a run for one actor; the reason in plain words when refused. */
+export function decideRunStep(run: RunSnapshot, event: RunEvent, actor: Actor): Result<RunStep, DomainError> {
+	const permitted = runStepPermitted(run, event.type, actor)
+	if (!permitted.ok) return permitted
+	if (event.type === 'close-investigation' && event.summary.trim().length < MIN_RUN_TEXT_LENGTH)
+		return err(new DomainError(`Write the investigation summary (at least ${MIN_RUN_TEXT_LENGTH} characters).`, 422))
+	return permitted
+}
+
+/** Whether `original` may be retested at all (the reason is asked for with the retest). */
+export function retestPermitted(original: RunSnapshot): Result<true, DomainError> {
 	if (original.outcome !== 'flagged')
 		return err(new DomainError('Only a run flagged for investigation can be retested.', 409))
 	if (original.investigationConclusion === 'confirmed')
 		return err(
 			new DomainError('The investigation confirmed the result: the lot does not conform and is not retested.', 409),
 		)
+	return ok(true)
+}
+
+/** Whether a retest of `original` may be recorded; a retest always needs a written reason. */
+export function decideRetest(original: RunSnapshot, reason: string): Result<true, DomainError> {
+	const permitted = retestPermitted(original)
+	if (!permitted.ok) return permitted
 	if (reason.trim().length < MIN_RUN_TEXT_LENGTH)
 		return err(new DomainError(`Give the reason for the retest (at least ${MIN_RUN_TEXT_LENGTH} characters).`, 422))
-	return ok(true)
+	return permitted
 }
 
 export type LotDisposition =

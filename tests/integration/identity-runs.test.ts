@@ -389,3 +389,23 @@ test('[RUN-007] the record hash is the SHA-256 of the RFC 8785 canonical record 
 	}
 	expect(run.recordSha256).toBe(await sha256Hex(canonicalJson(document)))
 })
+
+test('[RUN-008] a lot already recorded is refused before any file is read, and nothing is stored', async () => {
+	const lab = await makeReleaseLab()
+	const lotNumber = nextLot()
+	const first = await firstRun(lab, containerFiles(lotNumber, [{ relPath: REFERENCE, seed: 81 }]), lotNumber)
+	expect(first.ok).toBe(true)
+	const before = await tableCounts()
+	// The second set holds a broken file: the lot refusal comes first, so the file is never read.
+	const again = await firstRun(
+		lab,
+		[{ fileName: `${lotNumber}-C01.jdx`, bytes: readReferenceFile('format/malformed/truncated_no_end.jdx') }],
+		lotNumber,
+	)
+	expect(again.ok).toBe(false)
+	if (!again.ok) {
+		expect(again.error.status).toBe(409)
+		expect(again.error.message).toMatch(/is already recorded for this material/)
+	}
+	expect(await tableCounts()).toEqual(before)
+})

@@ -14,7 +14,7 @@ import {
 import { specifications, specVersions } from '#app/.server/db/schema/specifications.ts'
 import { spectra } from '#app/.server/db/schema/spectra.ts'
 import { parseContent } from '#app/.server/services/specifications.ts'
-import { lotDisposition } from '#shared/runs/run-rules.ts'
+import { lotDisposition, type RunSnapshot } from '#shared/runs/run-rules.ts'
 
 const recorder = alias(users, 'recorder')
 const closer = alias(users, 'closer')
@@ -100,8 +100,11 @@ export async function getLot(db: Db, lotId: string) {
 	return { ...row, runs, disposition: lotDisposition(runs) }
 }
 
-/** Everything a run record shows: lot, specification, instrument check, containers with evidence, signatures, links. */
-export async function getRun(db: Db, runId: string) {
+/**
+ * Everything a run record shows: lot, specification, instrument check, containers with evidence, signatures, links.
+ * `containerNumber` loads that one container only (the container page), not every container of the run.
+ */
+export async function getRun(db: Db, runId: string, options: { containerNumber?: number } = {}) {
 	const [run] = await runsQuery(db).where(eq(identityRuns.id, runId))
 	if (!run) return null
 	const [context] = await db
@@ -146,7 +149,12 @@ export async function getRun(db: Db, runId: string) {
 		})
 		.from(runContainers)
 		.innerJoin(spectra, eq(spectra.id, runContainers.spectrumId))
-		.where(eq(runContainers.runId, runId))
+		.where(
+			and(
+				eq(runContainers.runId, runId),
+				options.containerNumber === undefined ? undefined : eq(runContainers.containerNumber, options.containerNumber),
+			),
+		)
 		.orderBy(asc(runContainers.containerNumber))
 	const signatures = await db
 		.select()
@@ -180,6 +188,14 @@ export async function getRun(db: Db, runId: string) {
 		signatures,
 		retests,
 		retestOf: retestOf ?? null,
+		/** The rules' view of the run (shared/runs/run-rules.ts), for deciding what a person may do on it. */
+		snapshot: {
+			state: run.state,
+			outcome: run.outcome,
+			recordedBy: run.recordedBy,
+			performedBy: signatures.find((row) => row.meaning === 'performed')?.signerId ?? null,
+			investigationConclusion: run.investigationConclusion,
+		} satisfies RunSnapshot,
 	}
 }
 

@@ -21,7 +21,7 @@ import {
 	type RunSnapshot,
 	runSignatureStatement,
 } from '#shared/runs/run-rules.ts'
-import { compareSpectra, type Comparison } from '#shared/spectra/compare.ts'
+import { compareSpectra } from '#shared/spectra/compare.ts'
 import { AcceptanceCriteriaSchema } from '#shared/spectra/criteria.ts'
 import { importSpectrum } from '#shared/spectra/import.ts'
 import { toAcceptanceCriteria } from '#shared/specs/version-content.ts'
@@ -95,6 +95,7 @@ export async function recordIdentityRun(
 		specificationId = row.run.specificationId
 		lot = { ...row.lot, id: row.lot.id }
 	}
+	const retestReason = input.kind === 'retest' ? input.reason.trim() : null
 	const basis = await effectiveBasis(db, specificationId)
 	if (!basis) {
 		return err(
@@ -103,6 +104,8 @@ export async function recordIdentityRun(
 			),
 		)
 	}
+	// The cheap refusal first: a lot recorded before is tested again only through a retest of its flagged run.
+	if (!lot.id && (await lotRecorded(db, basis.material.id, lot))) return err(lotTaken(lot))
 	const content = parseContent(basis.version.content)
 	if (!content.referenceSpectrumId) return err(new Conflict('The effective version has no reference spectrum.'))
 
@@ -176,23 +179,8 @@ export async function recordIdentityRun(
 	const recorded = db.transaction(async (tx) => {
 		let lotId = lot.id
 		if (!lotId) {
-			const [duplicate] = await tx
-				.select({ id: lots.id })
-				.from(lots)
-				.where(
-					and(
-						eq(lots.materialId, basis.material.id),
-						eq(lots.supplier, lot.supplier),
-						eq(lots.lotNumber, lot.lotNumber),
-					),
-				)
-			if (duplicate) {
-				return err(
-					new Conflict(
-						`Lot ${lot.lotNumber} from ${lot.supplier} is already recorded for this material. Open it to see its runs; a retest starts from a flagged run.`,
-					),
-				)
-			}
+			// Checked again here: someone may have recorded the same lot since the check above.
+			if (await lotRecorded(tx, basis.material.id, lot)) return err(lotTaken(lot))
 			const [created] = await tx
 				.insert(lots)
 				.values({
@@ -270,7 +258,7 @@ export async function recordIdentityRun(
 				checkValidUntil: check.validUntil.toISOString(),
 			},
 			retestOf: original?.runNumber ?? null,
-			retestReason: input.kind === 'retest' ? input.reason.trim() : null,
+			retestReason,
 			recordedBy: input.actor.email,
 			recordedAt: input.now.toISOString(),
 			containers: containers.map((row) => ({
@@ -294,7 +282,7 @@ export async function recordIdentityRun(
 				instrumentId: instrument.instrument.id,
 				instrumentCheckId: check.id,
 				retestOfId: original?.id ?? null,
-				retestReason: input.kind === 'retest' ? input.reason.trim() : null,
+				retestReason,
 				outcome,
 				recordSha256,
 				recordedBy: input.actor.id,
@@ -309,7 +297,7 @@ export async function recordIdentityRun(
 				verdict: row.comparison.verdict,
 				correlation: row.comparison.correlation,
 				derivativeCorrelation: row.comparison.derivativeCorrelation,
-				result: storedComparison(row.comparison),
+				result: row.comparison,
 				algorithmVersion: row.comparison.algorithmVersion,
 			})),
 		)
@@ -329,7 +317,7 @@ export async function recordIdentityRun(
 				recordSha256,
 				...(original ? { retestOf: original.runNumber } : {}),
 			},
-			reason: input.kind === 'retest' ? input.reason.trim() : null,
+			reason: retestReason,
 			occurredAt: input.now,
 		})
 		return ok({ runId: run!.id, runNumber, outcome })
@@ -340,28 +328,24 @@ export async function recordIdentityRun(
 	})
 }
 
+async function lotRecorded(db: Db, materialId: string, lot: Pick<LotInput, 'supplier' | 'lotNumber'>) {
+	const [row] = await db
+		.select({ id: lots.id })
+		.from(lots)
+		.where(and(eq(lots.materialId, materialId), eq(lots.supplier, lot.supplier), eq(lots.lotNumber, lot.lotNumber)))
+	return Boolean(row)
+}
+
+function lotTaken(lot: Pick<LotInput, 'supplier' | 'lotNumber'>) {
+	return new Conflict(
+		`Lot ${lot.lotNumber} from ${lot.supplier} is already recorded for this material. Open it to see its runs; a retest starts from a flagged run.`,
+	)
+}
+
 /** Thrown inside a run's transaction to roll it back when a sample's bytes were stored by someone else meanwhile. */
 class StoredMeanwhile extends Error {
 	constructor(readonly fileName: string) {
 		super(`${fileName} was stored meanwhile`)
-	}
-}
-
-/** The comparison as stored evidence: everything but the (already stored) criteria repeated per container. */
-function storedComparison(comparison: Comparison) {
-	return {
-		verdict: comparison.verdict,
-		reasons: comparison.reasons,
-		correlation: comparison.correlation,
-		derivativeCorrelation: comparison.derivativeCorrelation,
-		distance: comparison.distance,
-		flags: comparison.flags,
-		bands: comparison.bands,
-		extraBands: comparison.extraBands,
-		grid: comparison.grid,
-		algorithm: comparison.algorithm,
-		algorithmVersion: comparison.algorithmVersion,
-		params: comparison.params,
 	}
 }
 

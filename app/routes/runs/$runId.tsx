@@ -18,7 +18,7 @@ import { PageHeader } from '#app/components/ui/page-header.tsx'
 import { cn, formatUtc } from '#app/utils/misc.ts'
 import { can } from '#shared/authz/permissions.ts'
 import { InvestigationFormSchema, RunSignFormSchema } from '#shared/runs/forms.ts'
-import { CONCLUSION_LABELS, decideRetest, decideRunStep, type RunSnapshot } from '#shared/runs/run-rules.ts'
+import { CONCLUSION_LABELS, retestPermitted, runStepPermitted } from '#shared/runs/run-rules.ts'
 
 function runIdOf(params: { runId: string }): string {
 	const parsed = z.uuid().safeParse(params.runId)
@@ -30,29 +30,29 @@ export async function loader({ context, params }: Route.LoaderArgs) {
 	const actor = authorize(context, 'run:read')
 	const found = await getRun(db, runIdOf(params))
 	if (!found) throw data({ message: 'This run does not exist, or its address is wrong.' }, { status: 404 })
-	const snapshot: RunSnapshot = {
-		state: found.run.state,
-		outcome: found.run.outcome,
-		recordedBy: found.run.recordedBy,
-		performedBy: found.signatures.find((row) => row.meaning === 'performed')?.signerId ?? null,
-		investigationConclusion: found.run.investigationConclusion,
-	}
+	const { snapshot, containers, ...rest } = found
 	// What this person may do now, decided by the same rules the server applies on submit.
 	const may = {
-		sign: decideRunStep(snapshot, { type: 'sign-performed' }, actor).ok,
-		verify: decideRunStep(snapshot, { type: 'verify' }, actor).ok,
-		conclude: decideRunStep(
-			snapshot,
-			{ type: 'close-investigation', conclusion: 'confirmed', summary: 'x'.repeat(20) },
-			actor,
-		).ok,
-		retest: can(actor, 'run:record') && decideRetest(snapshot, 'x'.repeat(20)).ok,
+		sign: runStepPermitted(snapshot, 'sign-performed', actor).ok,
+		verify: runStepPermitted(snapshot, 'verify', actor).ok,
+		conclude: runStepPermitted(snapshot, 'close-investigation', actor).ok,
+		retest: can(actor, 'run:record') && retestPermitted(snapshot).ok,
 	}
 	const whyNotVerify =
-		found.run.state === 'performed' && !may.verify && can(actor, 'run:verify')
+		snapshot.state === 'performed' && !may.verify && can(actor, 'run:verify')
 			? 'You performed this run; a second person verifies it.'
 			: null
-	return { ...found, may, whyNotVerify }
+	// The table needs each container's reasons and band count, not its whole stored comparison.
+	const rows = containers.map(({ result, ...row }) => {
+		const stored = result as { reasons: Array<string>; bands: Array<{ withinTolerance: boolean }> }
+		return {
+			...row,
+			reasons: stored.reasons,
+			bandsWithin: stored.bands.filter((band) => band.withinTolerance).length,
+			bandCount: stored.bands.length,
+		}
+	})
+	return { ...rest, containers: rows, may, whyNotVerify }
 }
 
 export async function action({ request, context, params }: Route.ActionArgs) {
@@ -118,11 +118,6 @@ export async function action({ request, context, params }: Route.ActionArgs) {
 
 const fixed = (value: number | null | undefined, digits = 4) =>
 	value === null || value === undefined ? '—' : value.toFixed(digits)
-
-type StoredComparison = {
-	reasons: Array<string>
-	bands: Array<{ withinTolerance: boolean; expected: { required: boolean } }>
-}
 
 export default function RunPage({ loaderData, actionData }: Route.ComponentProps) {
 	const { run, lot, material, instrument, check, containers, signatures, retests, retestOf, criteria, may } = loaderData
@@ -263,53 +258,47 @@ export default function RunPage({ loaderData, actionData }: Route.ComponentProps
 				className="mb-6"
 				testId="containers"
 			>
-				{containers.map((row) => {
-					const result = row.result as unknown as StoredComparison
-					const within = result.bands.filter((band) => band.withinTolerance).length
-					return (
-						<tr key={row.id} className="border-rule border-b align-top last:border-0">
-							<td className="px-3 py-2 text-right font-medium tabular-nums">
-								<Link
-									to={`/runs/${run.id}/containers/${row.containerNumber}`}
-									className="text-accent underline-offset-4 hover:underline"
-									aria-label={`Evidence of container ${row.containerNumber}`}
-								>
-									{row.containerNumber}
-								</Link>
-							</td>
-							<td className="px-3 py-2 whitespace-nowrap">{row.fileName}</td>
-							<td className="px-3 py-2">
-								<VerdictBadge verdict={row.verdict} />
-							</td>
-							<td
-								className={cn(
-									'px-3 py-2 text-right tabular-nums',
-									row.correlation !== null && row.correlation < threshold && 'text-danger font-semibold',
-								)}
+				{containers.map((row) => (
+					<tr key={row.id} className="border-rule border-b align-top last:border-0">
+						<td className="px-3 py-2 text-right font-medium tabular-nums">
+							<Link
+								to={`/runs/${run.id}/containers/${row.containerNumber}`}
+								className="text-accent underline-offset-4 hover:underline"
+								aria-label={`Evidence of container ${row.containerNumber}`}
 							>
-								{fixed(row.correlation)}
-							</td>
-							<td className="px-3 py-2 text-right tabular-nums">{fixed(row.derivativeCorrelation)}</td>
-							<td className="px-3 py-2 text-right tabular-nums">
-								{within} / {result.bands.length}
-							</td>
-							<td className="text-ink-soft max-w-md px-3 py-2">
-								{result.reasons.length === 0 ? (
-									'—'
-								) : (
-									<>
-										{result.reasons[0]}
-										{result.reasons.length > 1 ? (
-											<span className="block text-xs">
-												and {result.reasons.length - 1} more on the container's page
-											</span>
-										) : null}
-									</>
-								)}
-							</td>
-						</tr>
-					)
-				})}
+								{row.containerNumber}
+							</Link>
+						</td>
+						<td className="px-3 py-2 whitespace-nowrap">{row.fileName}</td>
+						<td className="px-3 py-2">
+							<VerdictBadge verdict={row.verdict} />
+						</td>
+						<td
+							className={cn(
+								'px-3 py-2 text-right tabular-nums',
+								row.correlation !== null && row.correlation < threshold && 'text-danger font-semibold',
+							)}
+						>
+							{fixed(row.correlation)}
+						</td>
+						<td className="px-3 py-2 text-right tabular-nums">{fixed(row.derivativeCorrelation)}</td>
+						<td className="px-3 py-2 text-right tabular-nums">
+							{row.bandsWithin} / {row.bandCount}
+						</td>
+						<td className="text-ink-soft max-w-md px-3 py-2">
+							{row.reasons.length === 0 ? (
+								'—'
+							) : (
+								<>
+									{row.reasons[0]}
+									{row.reasons.length > 1 ? (
+										<span className="block text-xs">and {row.reasons.length - 1} more on the container's page</span>
+									) : null}
+								</>
+							)}
+						</td>
+					</tr>
+				))}
 			</ListTable>
 
 			<h2 className="mb-2 text-lg font-semibold">Signatures</h2>

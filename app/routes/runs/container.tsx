@@ -15,8 +15,10 @@ const ParamsSchema = z.object({ runId: z.uuid(), containerNumber: z.coerce.numbe
 export async function loader({ context, params }: Route.LoaderArgs) {
 	authorize(context, 'run:read')
 	const parsed = ParamsSchema.safeParse(params)
-	const found = parsed.success ? await getRun(db, parsed.data.runId) : null
-	const container = found?.containers.find((row) => row.containerNumber === parsed.data?.containerNumber)
+	const found = parsed.success
+		? await getRun(db, parsed.data.runId, { containerNumber: parsed.data.containerNumber })
+		: null
+	const container = found?.containers[0]
 	if (!found || !container)
 		throw data({ message: 'This container does not exist, or its address is wrong.' }, { status: 404 })
 	return {
@@ -35,7 +37,7 @@ export async function loader({ context, params }: Route.LoaderArgs) {
 			to: region.to,
 			label: region.label ?? undefined,
 		})),
-		containerCount: found.containers.length,
+		containerCount: found.lot.containerCount,
 	}
 }
 

@@ -17,7 +17,7 @@ import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx
 import { Button, buttonVariants } from '#app/components/ui/button.tsx'
 import { PageHeader } from '#app/components/ui/page-header.tsx'
 import { RetestFormSchema } from '#shared/runs/forms.ts'
-import { decideRetest } from '#shared/runs/run-rules.ts'
+import { retestPermitted } from '#shared/runs/run-rules.ts'
 
 async function originalRun(params: { runId: string }) {
 	const parsed = z.uuid().safeParse(params.runId)
@@ -29,16 +29,7 @@ async function originalRun(params: { runId: string }) {
 export async function loader({ context, params }: Route.LoaderArgs) {
 	authorize(context, 'run:record')
 	const found = await originalRun(params)
-	const allowed = decideRetest(
-		{
-			state: found.run.state,
-			outcome: found.run.outcome,
-			recordedBy: found.run.recordedBy,
-			performedBy: null,
-			investigationConclusion: found.run.investigationConclusion,
-		},
-		'x'.repeat(20),
-	)
+	const allowed = retestPermitted(found.snapshot)
 	if (!allowed.ok) throw data({ message: allowed.error.message }, { status: allowed.error.status })
 	const instruments = await listInstruments(db, new Date())
 	return {

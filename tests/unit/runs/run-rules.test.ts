@@ -16,6 +16,8 @@ import {
 	runSignatureStatement,
 	type RunSnapshot,
 	type RunState,
+	retestPermitted,
+	runStepPermitted,
 } from '#shared/runs/run-rules.ts'
 import type { Verdict } from '#shared/spectra/compare.ts'
 
@@ -384,4 +386,25 @@ describe('runSignatureStatement — 21 CFR 11.50(a)(1),(3) (READ-2°) and 11.70 
 		expect(other).not.toBe(performed)
 		expect(other).not.toContain(subject.recordSha256)
 	})
+})
+
+test(`what a page offers is what the server accepts, the written text aside (${SEGREGATION}; ${OOS})`, () => {
+	const people = [ANALYST, SECOND_ANALYST, REVIEWER, APPROVER, AUTHOR, ADMIN, INSPECTOR, ANALYST_APPROVER]
+	const states: Array<RunSnapshot> = [
+		run('recorded'),
+		run('performed', { performedBy: 'ana' }),
+		run('verified', { performedBy: 'ana', outcome: 'flagged' }),
+		run('verified', { performedBy: 'ana', outcome: 'flagged', investigationConclusion: 'confirmed' }),
+	]
+	for (const snapshot of states) {
+		for (const actor of people) {
+			for (const event of [SIGN, VERIFY, CLOSE()]) {
+				expect(runStepPermitted(snapshot, event.type, actor).ok).toBe(decideRunStep(snapshot, event, actor).ok)
+			}
+			if (runStepPermitted(snapshot, 'close-investigation', actor).ok)
+				expect(decideRunStep(snapshot, CLOSE('confirmed', '  short  '), actor).ok).toBe(false)
+		}
+		expect(retestPermitted(snapshot).ok).toBe(decideRetest(snapshot, SUMMARY).ok)
+		if (retestPermitted(snapshot).ok) expect(decideRetest(snapshot, 'too short').ok).toBe(false)
+	}
 })
