@@ -223,7 +223,7 @@ async function handle<Q extends z.ZodType, B extends z.ZodType>(
 /** A path parameter that must be a UUID: anything else cannot name a record, so it is a 404. */
 export function uuidParam(params: Record<string, string | undefined>, name: string, what: string): string {
 	const value = params[name]
-	if (!z.uuid().safeParse(value).success) throw new ApiProblem(404, `${what} was not found.`)
+	if (!z.uuid().safeParse(value).success) notFound(what)
 	return value!
 }
 

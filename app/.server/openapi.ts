@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { MAX_JSON_BODY_BYTES } from '#app/.server/api.ts'
-import { PROBLEM_CONTENT_TYPE } from '#app/.server/problem.ts'
+import { API_PATH_PREFIX, PROBLEM_CONTENT_TYPE } from '#app/.server/problem.ts'
 import {
 	CompareRequestSchema,
 	CompareResultSchema,
@@ -221,7 +221,7 @@ function multipartProperties(schema: z.ZodObject): Record<string, unknown> {
  * when no operation has that path: for the Allow field of a 405 (RFC 9110 §15.5.6).
  */
 export function allowedApiMethods(pathname: string): Array<string> | null {
-	const path = pathname.slice('/api/v1'.length).replace(/\/+$/, '')
+	const path = pathname.slice(API_PATH_PREFIX.length).replace(/\/+$/, '')
 	const methods = new Set<string>()
 	if (path === '/openapi.json') methods.add('GET')
 	for (const operation of OPERATIONS) {
@@ -233,8 +233,18 @@ export function allowedApiMethods(pathname: string): Array<string> | null {
 	return ['GET', 'HEAD', 'POST'].filter((method) => methods.has(method))
 }
 
-/** The OpenAPI 3.1 document of /api/v1, built from the same zod schemas the routes parse with. */
-export function buildOpenApiDocument(serverUrl = '/api/v1') {
+/**
+ * The OpenAPI 3.1 document of /api/v1, built from the same zod schemas the routes parse with. It depends on nothing
+ * but this module, so it is built once, on first use, and shared (read-only) by every request after.
+ */
+export function buildOpenApiDocument() {
+	cachedDocument ??= createOpenApiDocument()
+	return cachedDocument
+}
+
+let cachedDocument: ReturnType<typeof createOpenApiDocument> | undefined
+
+function createOpenApiDocument() {
 	const paths: Record<string, Record<string, unknown>> = {}
 	for (const operation of OPERATIONS) {
 		paths[operation.path] = { ...paths[operation.path], [operation.method]: operationObject(operation) }
@@ -253,7 +263,7 @@ export function buildOpenApiDocument(serverUrl = '/api/v1') {
 			version: '1.0.0',
 			description: `Read materials, specifications and versions; upload spectra; compare a spectrum with a specification's effective version. Errors are application/problem+json (RFC 9457). JSON bodies are limited to ${MAX_JSON_BODY_BYTES} bytes.`,
 		},
-		servers: [{ url: serverUrl }],
+		servers: [{ url: API_PATH_PREFIX }],
 		security: [{ bearerAuth: [] }],
 		paths,
 		components: {

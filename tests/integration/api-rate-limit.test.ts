@@ -4,45 +4,12 @@ import { db } from '#app/.server/db/client.ts'
 import { auditEvents } from '#app/.server/db/schema/audit.ts'
 import { spectra } from '#app/.server/db/schema/spectra.ts'
 import { apiRateLimitRules } from '#app/.server/security/api-limits.ts'
-import { createApiKey } from '#app/.server/services/api-keys.ts'
 import { loader as materialsLoader } from '#app/routes/api/v1/materials.ts'
 import { action as spectraAction } from '#app/routes/api/v1/spectra.ts'
-import type { Actor, ApiKeyScope } from '#shared/authz/permissions.ts'
+import { apiGet, apiKeyFor, apiUpload, callApiRoute } from '#tests/support/api-requests.ts'
 import { makeActor } from '#tests/support/factories.ts'
-import { readReferenceFile } from '#tests/support/reference-spectra.ts'
 
 const SPECTRUM = 'compounds/4_chloroaniline_solid_pe1000.jdx'
-type Params = Record<string, string | undefined>
-
-async function keyFor(actor: Actor, scopes: Array<ApiKeyScope>): Promise<string> {
-	const created = await createApiKey(db, { actor, name: 'rate-limited script', scopes, now: new Date() })
-	if (!created.ok) throw created.error
-	return created.value.token
-}
-
-function get(path: string, token: string | null, address?: string): Request {
-	const headers: Record<string, string> = {}
-	if (token) headers.Authorization = `Bearer ${token}`
-	if (address) headers['X-Forwarded-For'] = address
-	return new Request(`http://localhost/api/v1${path}`, { headers })
-}
-
-function upload(token: string): Request {
-	const body = new FormData()
-	body.append('file', new File([readReferenceFile(SPECTRUM).slice()], SPECTRUM.split('/').at(-1)!))
-	body.append('purpose', 'sample')
-	return new Request('http://localhost/api/v1/spectra', {
-		method: 'POST',
-		headers: { Authorization: `Bearer ${token}` },
-		body,
-	})
-}
-
-const call = (
-	route: (args: { request: Request; params: Params }) => Promise<Response>,
-	request: Request,
-	params: Params = {},
-) => route({ request, params })
 
 /**
  * The rate-limit fields of draft-ietf-httpapi-ratelimit-headers-10 (IETF HTTPAPI, an Internet-Draft, work in
@@ -93,11 +60,11 @@ test('[API-101] one key may make API_RATE_LIMIT_PER_KEY requests a window; the n
 	const { max, windowMs } = rules['per-key']
 	const windowSeconds = windowMs / 1000
 	const author = await makeActor(db, 'author')
-	const busy = await keyFor(author, ['read', 'write'])
-	const other = await keyFor(author, ['read', 'write'])
+	const busy = await apiKeyFor(author, ['read', 'write'])
+	const other = await apiKeyFor(author, ['read', 'write'])
 
 	for (let n = 1; n <= max; n++) {
-		const response = await call(materialsLoader, get('/materials', busy))
+		const response = await callApiRoute(materialsLoader, apiGet('/materials', busy))
 		expect(response.status).toBe(200)
 		if (n === 1 || n === max) {
 			const fields = rateLimitFields(response)
@@ -108,16 +75,16 @@ test('[API-101] one key may make API_RATE_LIMIT_PER_KEY requests a window; the n
 
 	// The N+1th request is a write: refused before it is read, so no spectrum and no audit event appear.
 	const before = await countRows()
-	const refused = await call(spectraAction, upload(busy))
+	const refused = await callApiRoute(spectraAction, apiUpload(busy, SPECTRUM))
 	const detail = await expectTooManyRequests(refused, windowSeconds)
 	expect(detail).toContain('this API key')
 	expect(rateLimitFields(refused)).toMatchObject({ policy: 'per-key', remaining: 0 })
 	expect(await countRows()).toEqual(before)
 	// Reads are refused alike: the limit is per key, not per route.
-	await expectTooManyRequests(await call(materialsLoader, get('/materials', busy)), windowSeconds)
+	await expectTooManyRequests(await callApiRoute(materialsLoader, apiGet('/materials', busy)), windowSeconds)
 
 	// Another key of the same person has its own window: the same upload goes through.
-	const accepted = await call(spectraAction, upload(other))
+	const accepted = await callApiRoute(spectraAction, apiUpload(other, SPECTRUM))
 	expect(accepted.status).toBe(201)
 	expect(rateLimitFields(accepted)).toMatchObject({ policy: 'per-key', remaining: max - 1 })
 	expect((await countRows()).spectra).toBe(before.spectra + 1)
@@ -133,20 +100,20 @@ test('[API-102] without a valid key, requests count per client address: the next
 	const unknownKey = `bp_${'0'.repeat(64)}`
 
 	for (let n = 1; n <= max; n++) {
-		const response = await call(materialsLoader, get('/materials', n % 2 === 0 ? unknownKey : null, address))
+		const response = await callApiRoute(materialsLoader, apiGet('/materials', n % 2 === 0 ? unknownKey : null, address))
 		expect(response.status).toBe(401)
 		if (n === max) expect(rateLimitFields(response)).toMatchObject({ policy: 'per-address', quota: max, remaining: 0 })
 	}
-	const refused = await call(materialsLoader, get('/materials', unknownKey, address))
+	const refused = await callApiRoute(materialsLoader, apiGet('/materials', unknownKey, address))
 	const detail = await expectTooManyRequests(refused, windowSeconds)
 	expect(detail).toContain('without a valid API key')
 	// 429 comes before 401: a client over the limit is not told whether its key exists.
 	expect(refused.headers.get('WWW-Authenticate')).toBeNull()
 
-	expect((await call(materialsLoader, get('/materials', unknownKey, elsewhere))).status).toBe(401)
+	expect((await callApiRoute(materialsLoader, apiGet('/materials', unknownKey, elsewhere))).status).toBe(401)
 	const reader = await makeActor(db, 'reviewer')
-	const token = await keyFor(reader, ['read'])
-	const valid = await call(materialsLoader, get('/materials', token, address))
+	const token = await apiKeyFor(reader, ['read'])
+	const valid = await callApiRoute(materialsLoader, apiGet('/materials', token, address))
 	expect(valid.status).toBe(200)
 	expect(rateLimitFields(valid).policy).toBe('per-key')
 })

@@ -15,49 +15,10 @@ import { action as spectraAction } from '#app/routes/api/v1/spectra.ts'
 import { loader as dossierLoader } from '#app/routes/api/v1/versions.$versionId.dossier.ts'
 import { loader as bandsLoader } from '#app/routes/api/v1/versions.$versionId.bands.ts'
 import { loader as versionLoader } from '#app/routes/api/v1/versions.$versionId.ts'
-import type { Actor, ApiKeyScope } from '#shared/authz/permissions.ts'
+import { apiGet, apiKeyFor, apiPostJson, apiUpload, callApiRoute } from '#tests/support/api-requests.ts'
 import { auditActionsFor, makeActor, makeMaterial, makeSignedVersion } from '#tests/support/factories.ts'
-import { readReferenceFile } from '#tests/support/reference-spectra.ts'
 
 const SPECTRUM = 'compounds/4_chloroaniline_solid_pe1000.jdx'
-type Params = Record<string, string | undefined>
-
-async function keyFor(actor: Actor, scopes: Array<ApiKeyScope>): Promise<string> {
-	const created = await createApiKey(db, { actor, name: 'test script', scopes, now: new Date() })
-	if (!created.ok) throw created.error
-	return created.value.token
-}
-
-function get(path: string, token: string | null): Request {
-	return new Request(`http://localhost/api/v1${path}`, {
-		headers: token ? { Authorization: `Bearer ${token}` } : {},
-	})
-}
-
-function postJson(path: string, token: string, body: unknown): Request {
-	return new Request(`http://localhost/api/v1${path}`, {
-		method: 'POST',
-		headers: { Authorization: `Bearer ${token}`, 'Content-Type': 'application/json' },
-		body: JSON.stringify(body),
-	})
-}
-
-function upload(token: string, relPath: string): Request {
-	const body = new FormData()
-	body.append('file', new File([readReferenceFile(relPath).slice()], relPath.split('/').at(-1)!))
-	body.append('purpose', 'sample')
-	return new Request('http://localhost/api/v1/spectra', {
-		method: 'POST',
-		headers: { Authorization: `Bearer ${token}` },
-		body,
-	})
-}
-
-const call = (
-	route: (args: { request: Request; params: Params }) => Promise<Response>,
-	request: Request,
-	params: Params = {},
-) => route({ request, params })
 
 /** An RFC 9457 problem: its media type and its four members. */
 async function expectProblem(response: Response, status: number): Promise<{ detail: string }> {
@@ -73,8 +34,8 @@ async function expectProblem(response: Response, status: number): Promise<{ deta
 test('[API-001] a valid read key reads materials, paginated; the key stores only a hash and notes its last use', async () => {
 	const author = await makeActor(db, 'author')
 	for (const name of ['Alpha', 'Beta', 'Gamma']) await makeMaterial(db, author, name)
-	const token = await keyFor(author, ['read'])
-	const response = await call(materialsLoader, get('/materials?page=2&pageSize=2', token))
+	const token = await apiKeyFor(author, ['read'])
+	const response = await callApiRoute(materialsLoader, apiGet('/materials?page=2&pageSize=2', token))
 	expect(response.status).toBe(200)
 	const page = (await response.json()) as { items: Array<unknown>; page: number; pageSize: number; total: number }
 	expect(page).toMatchObject({ page: 2, pageSize: 2, total: 3 })
@@ -89,33 +50,33 @@ test('[API-001] a valid read key reads materials, paginated; the key stores only
 
 test('[API-002] no key, an unknown key and a revoked key are 401 problem+json', async () => {
 	const author = await makeActor(db, 'author')
-	const token = await keyFor(author, ['read'])
-	await expectProblem(await call(materialsLoader, get('/materials', null)), 401)
-	await expectProblem(await call(materialsLoader, get('/materials', `bp_${'0'.repeat(64)}`)), 401)
+	const token = await apiKeyFor(author, ['read'])
+	await expectProblem(await callApiRoute(materialsLoader, apiGet('/materials', null)), 401)
+	await expectProblem(await callApiRoute(materialsLoader, apiGet('/materials', `bp_${'0'.repeat(64)}`)), 401)
 	const [key] = await db.select().from(apiKeys).where(eq(apiKeys.userId, author.id))
 	const revoked = await revokeApiKey(db, { actor: author, keyId: key!.id, now: new Date() })
 	expect(revoked.ok).toBe(true)
-	const problem = await expectProblem(await call(materialsLoader, get('/materials', token)), 401)
+	const problem = await expectProblem(await callApiRoute(materialsLoader, apiGet('/materials', token)), 401)
 	expect(problem.detail).toMatch(/revoked/)
 	expect(await auditActionsFor(db, key!.id)).toEqual(['api-key.created', 'api-key.revoked'])
 })
 
 test('[API-003] a read-scope key POSTing is 403; a role without the permission is 403; bad input is 400/422', async () => {
 	const author = await makeActor(db, 'author')
-	const readToken = await keyFor(author, ['read'])
-	const problem = await expectProblem(await call(spectraAction, upload(readToken, SPECTRUM)), 403)
+	const readToken = await apiKeyFor(author, ['read'])
+	const problem = await expectProblem(await callApiRoute(spectraAction, apiUpload(readToken, SPECTRUM)), 403)
 	expect(problem.detail).toMatch(/"write" scope/)
 	const reviewer = await makeActor(db, 'reviewer')
-	const reviewerToken = await keyFor(reviewer, ['read', 'write'])
-	await expectProblem(await call(spectraAction, upload(reviewerToken, SPECTRUM)), 403)
-	await expectProblem(await call(materialsLoader, get('/materials?pageSize=1000', readToken)), 400)
-	const writeToken = await keyFor(author, ['write', 'read'])
+	const reviewerToken = await apiKeyFor(reviewer, ['read', 'write'])
+	await expectProblem(await callApiRoute(spectraAction, apiUpload(reviewerToken, SPECTRUM)), 403)
+	await expectProblem(await callApiRoute(materialsLoader, apiGet('/materials?pageSize=1000', readToken)), 400)
+	const writeToken = await apiKeyFor(author, ['write', 'read'])
 	const specId = crypto.randomUUID()
-	const invalid = await call(compareAction, postJson(`/specifications/${specId}/compare`, writeToken, {}), {
+	const invalid = await callApiRoute(compareAction, apiPostJson(`/specifications/${specId}/compare`, writeToken, {}), {
 		specificationId: specId,
 	})
 	await expectProblem(invalid, 422)
-	const missing = await call(specificationLoader, get('/specifications/not-a-uuid', readToken), {
+	const missing = await callApiRoute(specificationLoader, apiGet('/specifications/not-a-uuid', readToken), {
 		specificationId: 'not-a-uuid',
 	})
 	await expectProblem(missing, 404)
@@ -125,8 +86,8 @@ test('[API-004] an inspector gets read keys only, and reads only versions their 
 	const inspector = await makeActor(db, 'inspector')
 	const refused = await createApiKey(db, { actor: inspector, name: 'x', scopes: ['write'], now: new Date() })
 	expect(refused.ok).toBe(false)
-	const token = await keyFor(inspector, ['read'])
-	await expectProblem(await call(specificationsLoader, get('/specifications', token)), 403)
+	const token = await apiKeyFor(inspector, ['read'])
+	await expectProblem(await callApiRoute(specificationsLoader, apiGet('/specifications', token)), 403)
 	const cast = {
 		author: await makeActor(db, 'author'),
 		reviewer: await makeActor(db, 'reviewer'),
@@ -134,7 +95,7 @@ test('[API-004] an inspector gets read keys only, and reads only versions their 
 	}
 	const signed = await makeSignedVersion(db, cast)
 	const params = { versionId: signed.versionId }
-	await expectProblem(await call(versionLoader, get(`/versions/${signed.versionId}`, token), params), 404)
+	await expectProblem(await callApiRoute(versionLoader, apiGet(`/versions/${signed.versionId}`, token), params), 404)
 	const admin = await makeActor(db, 'admin')
 	const today = new Date().toISOString().slice(0, 10)
 	const granted = await createGrant(db, {
@@ -150,10 +111,10 @@ test('[API-004] an inspector gets read keys only, and reads only versions their 
 		now: new Date(),
 	})
 	expect(granted.ok).toBe(true)
-	const response = await call(bandsLoader, get(`/versions/${signed.versionId}/bands`, token), params)
+	const response = await callApiRoute(bandsLoader, apiGet(`/versions/${signed.versionId}/bands`, token), params)
 	expect(response.status).toBe(200)
 	expect(((await response.json()) as { bands: Array<unknown> }).bands).toHaveLength(1)
-	const version = await call(versionLoader, get(`/versions/${signed.versionId}`, token), params)
+	const version = await callApiRoute(versionLoader, apiGet(`/versions/${signed.versionId}`, token), params)
 	expect(version.status).toBe(200)
 	expect(await version.json()).not.toHaveProperty('grantPurpose')
 	// PRODUCT.md §7: every view by an inspector is on record, through the API as through the pages.
@@ -173,20 +134,20 @@ test('[API-005] a script with a write key uploads a real spectrum and gets "conf
 		reviewer: await makeActor(db, 'reviewer'),
 		approver: await makeActor(db, 'approver'),
 	}
-	const token = await keyFor(cast.author, ['read', 'write'])
-	const uploaded = await call(spectraAction, upload(token, SPECTRUM))
+	const token = await apiKeyFor(cast.author, ['read', 'write'])
+	const uploaded = await callApiRoute(spectraAction, apiUpload(token, SPECTRUM))
 	expect(uploaded.status).toBe(201)
 	const { spectrumId } = (await uploaded.json()) as { spectrumId: string }
 	// The specification's reference is the same file, stored once: the upload above is reused as its reference.
 	const signed = await makeSignedVersion(db, cast)
 	expect(signed.state).toBe('effective')
-	const detail = await call(specificationLoader, get(`/specifications/${signed.specificationId}`, token), {
+	const detail = await callApiRoute(specificationLoader, apiGet(`/specifications/${signed.specificationId}`, token), {
 		specificationId: signed.specificationId,
 	})
 	expect(await detail.json()).toMatchObject({ effectiveVersionId: signed.versionId })
-	const compared = await call(
+	const compared = await callApiRoute(
 		compareAction,
-		postJson(`/specifications/${signed.specificationId}/compare`, token, { sampleSpectrumId: spectrumId }),
+		apiPostJson(`/specifications/${signed.specificationId}/compare`, token, { sampleSpectrumId: spectrumId }),
 		{ specificationId: signed.specificationId },
 	)
 	expect(compared.status).toBe(200)
@@ -195,7 +156,7 @@ test('[API-005] a script with a write key uploads a real spectrum and gets "conf
 	expect(result.correlation).toBeGreaterThan(0.999)
 	const evidenceCount = await db.execute('select count(*)::int as n from evidence')
 	expect(evidenceCount[0]).toMatchObject({ n: 0 })
-	const dossier = await call(dossierLoader, get(`/versions/${signed.versionId}/dossier.pdf`, token), {
+	const dossier = await callApiRoute(dossierLoader, apiGet(`/versions/${signed.versionId}/dossier.pdf`, token), {
 		versionId: signed.versionId,
 	})
 	expect(dossier.status).toBe(200)

@@ -279,6 +279,15 @@ export async function buildDossierData(
 	}
 }
 
+/**
+ * The "issued to … for inspection" line of an inspector's own copy of a dossier, the same whether it is downloaded
+ * from the inspection pages or through the API. `access` is what `inspectorAccess` found for the version.
+ */
+export function inspectionCopyLine(actor: Actor, access: { purpose: string; endsAt: Date }, now: Date): string {
+	const day = (at: Date) => at.toISOString().slice(0, 10)
+	return `Issued to ${actor.name || actor.email} on ${day(now)} for inspection (${access.purpose}); read-only access until ${day(access.endsAt)}.`
+}
+
 export type DossierFile = { bytes: Uint8Array; sha256: string; fileName: string; stored: boolean }
 
 /**

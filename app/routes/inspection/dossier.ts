@@ -3,11 +3,9 @@ import { z } from 'zod'
 import type { Route } from './+types/dossier'
 import { authorize } from '#app/.server/context.ts'
 import { db } from '#app/.server/db/client.ts'
-import { users } from '#app/.server/db/schema/auth.ts'
 import { clientAddress } from '#app/.server/services/audit.ts'
-import { getDossier } from '#app/.server/services/dossiers.ts'
+import { getDossier, inspectionCopyLine } from '#app/.server/services/dossiers.ts'
 import { inspectorAccess } from '#app/.server/services/grants.ts'
-import { eq } from 'drizzle-orm'
 
 const CONTENT_TYPES = {
 	pdf: 'application/pdf',
@@ -23,8 +21,7 @@ export async function loader({ context, params, request }: Route.LoaderArgs) {
 	const access = await inspectorAccess(db, actor.id, params.versionId, now)
 	if (!access)
 		throw data({ message: 'Your access grant does not cover this version, or it has ended.' }, { status: 403 })
-	const [person] = await db.select({ name: users.name }).from(users).where(eq(users.id, actor.id))
-	const inspectionLine = `Issued to ${person?.name ?? actor.email} on ${now.toISOString().slice(0, 10)} for inspection (${access.purpose}); read-only access until ${access.endsAt.toISOString().slice(0, 10)}.`
+	const inspectionLine = inspectionCopyLine(actor, access, now)
 	const file = await getDossier(db, {
 		actor,
 		versionId: params.versionId,
