@@ -181,7 +181,7 @@ export default function Trends({ loaderData }: Route.ComponentProps) {
 													{point.runNumber}
 												</Link>
 											</td>
-											<td className="px-3 py-1.5">{point.lotNumber}</td>
+											<td className="px-3 py-1.5 whitespace-nowrap">{point.lotNumber}</td>
 											<td className="px-3 py-1.5">{point.supplier}</td>
 											<td className="px-3 py-1.5">{point.instrumentCode}</td>
 											<td className="px-3 py-1.5 tabular-nums">{point.containerNumber}</td>
