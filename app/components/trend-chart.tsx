@@ -266,7 +266,9 @@ export function TrendChart({ points, thresholds, focus, suppliers, instruments, 
 			<Legend suppliers={suppliers} instruments={instruments} />
 			{measured.length < points.length ? (
 				<p className="text-ink-soft mt-2 text-xs">
-					{points.length - measured.length} container(s) without a correlation cannot be drawn; the table lists them.
+					{points.length - measured.length === 1
+						? '1 container has no correlation and cannot be drawn; the table lists it.'
+						: `${points.length - measured.length} containers have no correlation and cannot be drawn; the table lists them.`}
 				</p>
 			) : null}
 			<figcaption className="sr-only">{description}</figcaption>
@@ -308,13 +310,18 @@ function place(
 	y: (value: number) => number,
 	offScaleBelow: number | null,
 ): Array<Placed> {
-	const perRun = new Map<string, Array<TrendPoint>>()
-	for (const point of points) perRun.set(point.runId, [...(perRun.get(point.runId) ?? []), point])
-	return points.map((point) => {
-		const siblings = perRun.get(point.runId)!
-		const index = siblings.indexOf(point)
-		const step = siblings.length > 1 ? Math.min(4, (2 * FAN) / (siblings.length - 1)) : 0
-		const offset = (index - (siblings.length - 1) / 2) * step
+	// Each point's place among its run's containers, counted in one pass.
+	const perRun = new Map<string, number>()
+	const indexInRun = points.map((point) => {
+		const seen = perRun.get(point.runId) ?? 0
+		perRun.set(point.runId, seen + 1)
+		return seen
+	})
+	return points.map((point, at) => {
+		const runSize = perRun.get(point.runId)!
+		const index = indexInRun[at]!
+		const step = runSize > 1 ? Math.min(4, (2 * FAN) / (runSize - 1)) : 0
+		const offset = (index - (runSize - 1) / 2) * step
 		const offScale = offScaleBelow !== null && point.correlation! < offScaleBelow
 		return {
 			point,
@@ -330,7 +337,10 @@ function place(
 function labelOffScale(placed: ReadonlyArray<Placed>): Map<string, string> {
 	const perRun = new Map<string, Array<Placed>>()
 	for (const item of placed) {
-		if (item.offScale) perRun.set(item.point.runId, [...(perRun.get(item.point.runId) ?? []), item])
+		if (!item.offScale) continue
+		const items = perRun.get(item.point.runId)
+		if (items) items.push(item)
+		else perRun.set(item.point.runId, [item])
 	}
 	const labels = new Map<string, string>()
 	for (const items of perRun.values()) {

@@ -8,9 +8,9 @@ import { inputClass } from '#app/components/forms.tsx'
 import { GeneralErrorBoundary } from '#app/components/general-error-boundary.tsx'
 import { TrendChart } from '#app/components/trend-chart.tsx'
 import { buttonVariants } from '#app/components/ui/button.tsx'
+import { VerdictBadge } from '#app/components/run-badges.tsx'
 import { EmptyState } from '#app/components/ui/empty-state.tsx'
 import { PageHeader } from '#app/components/ui/page-header.tsx'
-import { StatusBadge } from '#app/components/ui/status-badge.tsx'
 import { cn } from '#app/utils/misc.ts'
 import {
 	correlationFocus,
@@ -22,14 +22,16 @@ import {
 	TrendPointSchema,
 } from '#shared/runs/trends.ts'
 
-const TrendsQuerySchema = z.object({
-	material: z.uuid({ message: 'The material is given by its id.' }).optional(),
-})
+const TrendsQuerySchema = z.object({ material: z.uuid().optional() })
 
 export async function loader({ request, context }: Route.LoaderArgs) {
 	authorize(context, 'run:read')
 	const query = TrendsQuerySchema.safeParse(Object.fromEntries(new URL(request.url).searchParams))
-	if (!query.success) throw data({ message: 'The material is given by its id.' }, { status: 400 })
+	if (!query.success)
+		throw data(
+			{ message: 'This link does not name a material. Open Trends from the menu and choose the material there.' },
+			{ status: 400 },
+		)
 	const materials = await materialsWithLots(db)
 	// Without a choice, the first material that has lots is shown, so the page is never blank for no reason.
 	const material = query.data.material
@@ -179,7 +181,7 @@ export default function Trends({ loaderData }: Route.ComponentProps) {
 													{point.runNumber}
 												</Link>
 											</td>
-											<td className="px-3 py-1.5">{point.lotNumber}</td>
+											<td className="px-3 py-1.5 whitespace-nowrap">{point.lotNumber}</td>
 											<td className="px-3 py-1.5">{point.supplier}</td>
 											<td className="px-3 py-1.5">{point.instrumentCode}</td>
 											<td className="px-3 py-1.5 tabular-nums">{point.containerNumber}</td>
@@ -211,17 +213,6 @@ export default function Trends({ loaderData }: Route.ComponentProps) {
 			)}
 		</>
 	)
-}
-
-function VerdictBadge({ verdict }: { verdict: 'conforms' | 'does-not-conform' | 'inconclusive' }) {
-	switch (verdict) {
-		case 'conforms':
-			return <StatusBadge tone="good">Conforms</StatusBadge>
-		case 'does-not-conform':
-			return <StatusBadge tone="danger">Does not conform</StatusBadge>
-		case 'inconclusive':
-			return <StatusBadge tone="caution">Inconclusive</StatusBadge>
-	}
 }
 
 const fixed = (value: number | null) => (value === null ? '—' : value.toFixed(4))

@@ -63,7 +63,11 @@ export function summariseTrend(
 	by: 'supplier' | 'instrumentCode',
 ): Array<TrendGroup> {
 	const groups = new Map<string, Array<TrendPoint>>()
-	for (const point of points) groups.set(point[by], [...(groups.get(point[by]) ?? []), point])
+	for (const point of points) {
+		const members = groups.get(point[by])
+		if (members) members.push(point)
+		else groups.set(point[by], [point])
+	}
 	return [...groups.entries()]
 		.sort((a, b) => byText(a[0], b[0]))
 		.map(([key, members]) => {

@@ -12,48 +12,21 @@ import { identityRuns, lots } from '#app/.server/db/schema/runs.ts'
 import { spectra } from '#app/.server/db/schema/spectra.ts'
 import { verifyAuditChain } from '#app/.server/queries/audit-chain.ts'
 import { recordIdentityRun } from '#app/.server/services/identity-runs.ts'
-import { recordInstrumentCheck, registerInstrument } from '#app/.server/services/instruments.ts'
-import { containerFiles, replicateOf } from '#tests/support/container-samples.ts'
-import { makeActor, makeSignedVersion, WORKFLOW_REFERENCE_FILE } from '#tests/support/factories.ts'
+import { containerFiles } from '#tests/support/container-samples.ts'
+import { WORKFLOW_REFERENCE_FILE } from '#tests/support/factories.ts'
+import { makeReleaseLab } from '#tests/support/release-lab.ts'
 
-const FILM = 'polystyrene/ps_film_pe1600_2cm_DIFDUP.jdx'
-
+/** An effective specification and an instrument with a passing check (tests/support/release-lab.ts). */
 async function lab() {
-	const version = await makeSignedVersion(db, {
-		author: await makeActor(db, 'author'),
-		reviewer: await makeActor(db, 'reviewer'),
-		approver: await makeActor(db, 'approver'),
-	})
-	const analyst = await makeActor(db, 'analyst')
-	const instrument = await registerInstrument(db, {
-		actor: analyst,
-		values: {
-			code: `IR-${Math.random().toString(36).slice(2, 8)}`,
-			name: 'Bench FTIR',
-			serialNumber: null,
-			location: null,
-			checkValidityDays: 30,
-			checkTable: 'ph-eur-ft',
-		},
-		now: new Date(),
-	})
-	if (!instrument.ok) throw instrument.error
-	const check = await recordInstrumentCheck(db, {
-		actor: analyst,
-		instrumentId: instrument.value.id,
-		fileName: 'ps-film.jdx',
-		bytes: replicateOf(FILM, 4242, 0.001),
-		notes: null,
-		now: new Date(),
-	})
-	if (!check.ok || !check.value.passed) throw new Error('the test instrument check did not pass')
+	const { analyst, version, instrumentId, check } = await makeReleaseLab()
+	if (!check?.passed) throw new Error('the test instrument check did not pass')
 	const run = (lotNumber: string, files: Array<{ fileName: string; bytes: Uint8Array }>) =>
 		recordIdentityRun(db, {
 			kind: 'first',
 			actor: analyst,
 			specificationId: version.specificationId,
 			lot: { lotNumber, supplier: 'Northbridge Fine Chemicals', containerCount: files.length, receivedOn: null },
-			instrumentId: instrument.value.id,
+			instrumentId,
 			files,
 			now: new Date(),
 		})

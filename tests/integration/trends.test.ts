@@ -256,6 +256,12 @@ test('[TRD-002] a material with two specifications: each run keeps the threshold
 		specs.map((spec) => [spec.documentNumber, 1, spec.minCorrelation]),
 	)
 	expect(result.thresholds.map((line) => line.steps.map((step) => step.threshold))).toHaveLength(2)
+	// One step line per specification, each at the minimum its own version set (ordered by document number).
+	expect(result.thresholds.map((line) => [line.documentNumber, line.steps.map((step) => step.threshold)])).toEqual(
+		specs
+			.map((spec) => [spec.documentNumber, [spec.minCorrelation]])
+			.sort((a, b) => (a[0]! < b[0]! ? -1 : a[0]! > b[0]! ? 1 : 0)),
+	)
 })
 
 test('[TRD-003] trends are for lab staff: an inspector is refused; a malformed id is 400, a material without lots 404', async () => {

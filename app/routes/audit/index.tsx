@@ -31,6 +31,22 @@ export async function loader({ context, request }: Route.LoaderArgs) {
 	}
 }
 
+/** What an event can be about (the `entityType` the services record), in the words of the lab. */
+const ENTITY_LABELS: Record<string, string> = {
+	user: 'User',
+	material: 'Material',
+	spectrum: 'Spectrum',
+	specification: 'Specification',
+	'spec-version': 'Specification version',
+	dossier: 'Dossier',
+	instrument: 'Instrument',
+	lot: 'Lot',
+	'identity-run': 'Identity run',
+	grant: 'Inspector access',
+	'api-key': 'API key',
+	audit: 'Audit trail',
+}
+
 function describeChange(before: unknown, after: unknown): string {
 	const show = (value: unknown) => (value && typeof value === 'object' ? JSON.stringify(value) : '')
 	const parts = [show(before) && `before ${show(before)}`, show(after) && `after ${show(after)}`].filter(Boolean)
@@ -125,9 +141,9 @@ export default function AuditTrail({ loaderData }: Route.ComponentProps) {
 						className={`${inputClass} w-48`}
 					>
 						<option value="">Anything</option>
-						{['user', 'material', 'spectrum', 'specification', 'spec-version', 'dossier', 'audit'].map((type) => (
+						{Object.entries(ENTITY_LABELS).map(([type, label]) => (
 							<option key={type} value={type}>
-								{type}
+								{label}
 							</option>
 						))}
 					</select>
