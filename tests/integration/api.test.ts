@@ -116,7 +116,7 @@ test('[API-004] an inspector gets read keys only, and reads only versions their 
 	expect(((await response.json()) as { bands: Array<unknown> }).bands).toHaveLength(1)
 	const version = await callApiRoute(versionLoader, apiGet(`/versions/${signed.versionId}`, token), params)
 	expect(version.status).toBe(200)
-	expect(await version.json()).not.toHaveProperty('grantPurpose')
+	expect(await version.json()).not.toHaveProperty('grant')
 	// PRODUCT.md §7: every view by an inspector is on record, through the API as through the pages.
 	const views = await db
 		.select({ after: auditEvents.after, actorId: auditEvents.actorId })

@@ -117,5 +117,5 @@ export async function visibleVersion(
 	const access = input.byGrant ? await inspectorAccess(db, input.actor.id, versionId, input.now) : null
 	if (input.byGrant && !access) return null
 	const version = await getVersionWithContent(db, versionId)
-	return version ? { ...version, grantPurpose: access?.purpose ?? null } : null
+	return version ? { ...version, grant: access } : null
 }

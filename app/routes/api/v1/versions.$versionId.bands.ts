@@ -6,6 +6,6 @@ import { recordInspectionView } from '#app/.server/services/grants.ts'
 export const loader = apiRoute({ scope: 'read', permission: 'spec:read', inspectorsByGrant: true }, async (input) => {
 	const version = await visibleVersion(db, input)
 	if (!version) return notFound('The version')
-	if (version.grantPurpose !== null) await recordInspectionView(db, viewOf(input, version.id, version.grantPurpose))
+	if (version.grant) await recordInspectionView(db, viewOf(input, version.id, version.grant.purpose))
 	return Response.json({ versionId: version.id, bands: version.content.bands })
 })

@@ -6,7 +6,7 @@ import { recordInspectionView } from '#app/.server/services/grants.ts'
 export const loader = apiRoute({ scope: 'read', permission: 'spec:read', inspectorsByGrant: true }, async (input) => {
 	const version = await visibleVersion(db, input)
 	if (!version) return notFound('The version')
-	const { grantPurpose, ...shown } = version
-	if (grantPurpose !== null) await recordInspectionView(db, viewOf(input, version.id, grantPurpose))
+	const { grant, ...shown } = version
+	if (grant) await recordInspectionView(db, viewOf(input, version.id, grant.purpose))
 	return Response.json(shown)
 })
