@@ -16,6 +16,7 @@ import { loader as dossierLoader } from '#app/routes/api/v1/versions.$versionId.
 import { loader as bandsLoader } from '#app/routes/api/v1/versions.$versionId.bands.ts'
 import { loader as versionLoader } from '#app/routes/api/v1/versions.$versionId.ts'
 import { apiGet, apiKeyFor, apiPostJson, apiUpload, callApiRoute } from '#tests/support/api-requests.ts'
+import { pdfPageTexts } from '#tests/support/pdf-text.ts'
 import { auditActionsFor, makeActor, makeMaterial, makeSignedVersion } from '#tests/support/factories.ts'
 
 const SPECTRUM = 'compounds/4_chloroaniline_solid_pe1000.jdx'
@@ -117,6 +118,12 @@ test('[API-004] an inspector gets read keys only, and reads only versions their 
 	const version = await callApiRoute(versionLoader, apiGet(`/versions/${signed.versionId}`, token), params)
 	expect(version.status).toBe(200)
 	expect(await version.json()).not.toHaveProperty('grant')
+	// The inspector's dossier copy names them and the grant it was issued under (PRODUCT.md §7).
+	const copy = await callApiRoute(dossierLoader, apiGet(`/versions/${signed.versionId}/dossier.pdf`, token), params)
+	expect(copy.status).toBe(200)
+	const text = (await pdfPageTexts(new Uint8Array(await copy.arrayBuffer()))).join(' ')
+	expect(text).toContain(`Issued to ${inspector.name}`)
+	expect(text).toContain('for inspection (Regulatory inspection)')
 	// PRODUCT.md §7: every view by an inspector is on record, through the API as through the pages.
 	const views = await db
 		.select({ after: auditEvents.after, actorId: auditEvents.actorId })
