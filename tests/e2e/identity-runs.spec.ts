@@ -109,7 +109,9 @@ test('a lot with a container of another material is flagged for investigation, a
 	await page.getByLabel('Sample spectra, one per container').setInputFiles(files)
 	await page.getByRole('button', { name: 'Record and compare' }).click()
 	await expect(page.getByTestId('run-status')).toContainText('Flagged for investigation')
-	await expect(page.getByRole('region', { name: 'Investigation' })).toContainText('Container 2 of 3 does not clearly conform.')
+	await expect(page.getByRole('region', { name: 'Investigation' })).toContainText(
+		'Container 2 of 3 does not clearly conform.',
+	)
 	const second = page.getByTestId('containers').getByRole('row').nth(2)
 	await expect(second).toContainText('Does not conform')
 	await snapshot(page, 'run-flagged')

@@ -1,5 +1,11 @@
 import { expect, test } from 'vitest'
-import { decideBodySize, MAX_BODY_BYTES, routePath, STREAMED_UPLOAD_PATHS, STREAMED_UPLOAD_PATTERNS } from '#app/.server/security/body-limit.ts'
+import {
+	decideBodySize,
+	MAX_BODY_BYTES,
+	routePath,
+	STREAMED_UPLOAD_PATHS,
+	STREAMED_UPLOAD_PATTERNS,
+} from '#app/.server/security/body-limit.ts'
 import routes from '#app/routes.ts'
 
 const base: Parameters<typeof decideBodySize>[0] = {
@@ -90,5 +96,7 @@ test('[SEC-035] a multipart post to a run or check upload is streamed; the same 
 		expect(decideBodySize({ ...large, pathname, contentType: 'multipart/form-data; boundary=x' }).ok).toBe(true)
 		expect(decideBodySize({ ...large, pathname, contentType: 'application/x-www-form-urlencoded' }).ok).toBe(false)
 	}
-	expect(decideBodySize({ ...large, pathname: '/runs/abc', contentType: 'multipart/form-data; boundary=x' }).ok).toBe(false)
+	expect(decideBodySize({ ...large, pathname: '/runs/abc', contentType: 'multipart/form-data; boundary=x' }).ok).toBe(
+		false,
+	)
 })
